@@ -1,0 +1,103 @@
+// Command poise relaxes molecules, proves they are minima and computes their
+// vibrational and thermochemical properties with its own Hartree–Fock and
+// Kohn–Sham engine.
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"os/signal"
+	"syscall"
+
+	"github.com/spf13/cobra"
+)
+
+// version is the program version; release builds set it with
+// -ldflags "-X main.version=...".
+var version = "0.1.0-dev"
+
+func newRootCmd() *cobra.Command {
+	root := &cobra.Command{
+		Use:           "poise",
+		Short:         "ab initio structures, frequencies and thermochemistry",
+		Long:          "poise relaxes a molecular structure, proves it is a minimum, and computes harmonic\nfrequencies, IR intensities and ideal-gas thermochemistry with its own Hartree–Fock\nand Kohn–Sham DFT engine.",
+		SilenceUsage:  true,
+		SilenceErrors: true,
+	}
+	root.AddCommand(
+		newVersionCmd(),
+		newBasisCmd(),
+		newEnergyCmd(),
+		newThermoCmd(),
+	)
+	return root
+}
+
+func newVersionCmd() *cobra.Command {
+	return &cobra.Command{
+		Use:   "version",
+		Short: "print the program version",
+		Args:  cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			fmt.Fprintf(cmd.OutOrStdout(), "poise %s\n", version)
+			return nil
+		},
+	}
+}
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	root := newRootCmd()
+	err := root.ExecuteContext(ctx)
+	os.Exit(reportError(os.Stderr, err))
+}
+
+// Exit statuses shared by every command.
+const (
+	exitOK          = 0
+	exitFailure     = 1 // an unexpected failure
+	exitUsage       = 2 // a user mistake: bad input file, bad flag
+	exitNotConverge = 3 // a calculation that did not converge
+)
+
+// exitError carries the exit status a failure should produce.
+type exitError struct {
+	code int
+	err  error
+}
+
+func (e *exitError) Error() string { return e.err.Error() }
+func (e *exitError) Unwrap() error { return e.err }
+
+// usageErr marks err as a user mistake (exit status 2).
+func usageErr(err error) error {
+	if err == nil {
+		return nil
+	}
+	return &exitError{code: exitUsage, err: err}
+}
+
+// convergeErr marks err as a convergence failure (exit status 3).
+func convergeErr(err error) error {
+	if err == nil {
+		return nil
+	}
+	return &exitError{code: exitNotConverge, err: err}
+}
+
+// reportError prints err (if any) and returns the exit status for it.
+func reportError(w *os.File, err error) int {
+	if err == nil {
+		return exitOK
+	}
+	fmt.Fprintf(w, "poise: %v\n", err)
+	var ee *exitError
+	if errors.As(err, &ee) {
+		return ee.code
+	}
+	// Errors from cobra's own flag and argument parsing are user mistakes.
+	return exitUsage
+}
