@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
 
 	"github.com/spf13/cobra"
@@ -26,6 +27,9 @@ func newRootCmd() *cobra.Command {
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
+	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
+		return usageErr(fmt.Errorf("%w (see 'poise %s --help')", err, c.Name()))
+	})
 	root.AddCommand(
 		newVersionCmd(),
 		newBasisCmd(),
@@ -98,6 +102,10 @@ func reportError(w *os.File, err error) int {
 	if errors.As(err, &ee) {
 		return ee.code
 	}
-	// Errors from cobra's own flag and argument parsing are user mistakes.
-	return exitUsage
+	// cobra's own complaints about the command line are user mistakes.
+	if msg := err.Error(); strings.HasPrefix(msg, "unknown command") || strings.HasPrefix(msg, "unknown flag") ||
+		strings.Contains(msg, "arg(s)") || strings.HasPrefix(msg, "invalid argument") {
+		return exitUsage
+	}
+	return exitFailure
 }

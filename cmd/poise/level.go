@@ -1,0 +1,145 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"runtime"
+	"runtime/debug"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"poise/energy/basis"
+	"poise/energy/molecule"
+	"poise/energy/scf"
+)
+
+// levelFlags are the level-of-theory and resource flags shared by every
+// command that computes energies.
+type levelFlags struct {
+	method       string
+	basisName    string
+	charge       int
+	multiplicity int
+	cartesian    bool
+	spherical    bool
+	unrestricted bool
+	threads      int
+	memory       string
+	maxIter      int
+}
+
+func (f *levelFlags) register(cmd *cobra.Command) {
+	fl := cmd.Flags()
+	fl.StringVar(&f.method, "method", "hf", "electronic-structure method: hf")
+	fl.StringVar(&f.basisName, "basis", "6-31g*", "basis set name (see 'poise basis list')")
+	fl.IntVar(&f.charge, "charge", 0, "total charge of the molecule")
+	fl.IntVar(&f.multiplicity, "multiplicity", 0, "spin multiplicity 2S+1 (default: 1 for an even electron count, 2 for odd)")
+	fl.BoolVar(&f.cartesian, "cartesian", false, "use Cartesian d, f, ... functions whatever the basis set's convention")
+	fl.BoolVar(&f.spherical, "spherical", false, "use spherical (pure) d, f, ... functions whatever the basis set's convention")
+	fl.BoolVar(&f.unrestricted, "unrestricted", false, "unrestricted (different orbitals for different spins) even for a closed-shell singlet")
+	fl.IntVar(&f.threads, "threads", runtime.NumCPU(), "number of threads")
+	fl.StringVar(&f.memory, "memory", "2GiB", "memory budget (e.g. 800MiB, 4GiB); integrals are kept in memory when they fit, and Go's memory limit is set to it")
+	fl.IntVar(&f.maxIter, "max-iterations", scf.DefaultMaxIterations, "largest number of SCF iterations")
+}
+
+// parseMemory reads sizes such as "2GiB", "512MiB", "4GB" or a plain number
+// of MiB.
+func parseMemory(s string) (int64, error) {
+	t := strings.TrimSpace(strings.ToLower(s))
+	mult := int64(1 << 20)
+	for _, u := range []struct {
+		suffix string
+		mult   int64
+	}{{"gib", 1 << 30}, {"gb", 1e9}, {"g", 1 << 30}, {"mib", 1 << 20}, {"mb", 1e6}, {"m", 1 << 20}, {"kib", 1 << 10}, {"kb", 1e3}} {
+		if strings.HasSuffix(t, u.suffix) {
+			t = strings.TrimSpace(strings.TrimSuffix(t, u.suffix))
+			mult = u.mult
+			break
+		}
+	}
+	v, err := strconv.ParseFloat(t, 64)
+	if err != nil || v <= 0 {
+		return 0, fmt.Errorf("--memory %q: give a size such as 800MiB or 4GiB", s)
+	}
+	return int64(v * float64(mult)), nil
+}
+
+// setup is everything a calculation needs once the flags are read.
+type setup struct {
+	mol      *molecule.Molecule
+	set      *basis.Set
+	shells   []basis.Shell
+	conv     basis.Convention
+	opts     scf.Options
+	method   string
+	memBytes int64
+}
+
+// prepare reads the molecule and checks the level of theory. Every problem
+// here is a user mistake (exit status 2).
+func (f *levelFlags) prepare(path string) (*setup, error) {
+	if f.threads < 1 {
+		return nil, usageErr(fmt.Errorf("--threads %d: give at least 1", f.threads))
+	}
+	if f.cartesian && f.spherical {
+		return nil, usageErr(errors.New("--cartesian and --spherical exclude each other: give one"))
+	}
+	mem, err := parseMemory(f.memory)
+	if err != nil {
+		return nil, usageErr(err)
+	}
+	method := strings.ToLower(f.method)
+	if method != "hf" {
+		return nil, usageErr(fmt.Errorf("--method %q: available methods are: hf", f.method))
+	}
+	mol, err := molecule.ReadXYZFile(path)
+	if err != nil {
+		return nil, usageErr(err)
+	}
+	if err := mol.SetSpin(f.charge, f.multiplicity); err != nil {
+		return nil, usageErr(fmt.Errorf("%s: %w", path, err))
+	}
+	set, err := basis.Load(f.basisName)
+	if err != nil {
+		return nil, usageErr(err)
+	}
+	conv := basis.Default
+	if f.cartesian {
+		conv = basis.Cartesian
+	} else if f.spherical {
+		conv = basis.Spherical
+	}
+	shells, err := set.Shells(mol, conv)
+	if err != nil {
+		return nil, usageErr(fmt.Errorf("%s: %w", path, err))
+	}
+	debug.SetMemoryLimit(mem)
+	return &setup{
+		mol:      mol,
+		set:      set,
+		shells:   shells,
+		conv:     conv,
+		method:   method,
+		memBytes: mem,
+		opts: scf.Options{
+			Unrestricted:  f.unrestricted,
+			MaxIterations: f.maxIter,
+			Threads:       f.threads,
+			MemoryBytes:   mem,
+		},
+	}, nil
+}
+
+// runSCF runs the SCF and turns a convergence failure into exit status 3
+// with advice.
+func runSCF(ctx context.Context, s *setup) (*scf.Result, error) {
+	res, err := scf.Run(ctx, s.mol, s.shells, s.opts)
+	if errors.Is(err, scf.ErrNotConverged) {
+		return res, convergeErr(fmt.Errorf("%w\n  try: --max-iterations %d; a smaller basis first; check the geometry, charge and multiplicity; for open shells --unrestricted",
+			err, 2*s.opts.MaxIterations))
+	}
+	return res, err
+}

@@ -1,0 +1,486 @@
+package integral
+
+// Electron-repulsion integrals (ab|cd) = ∫∫ a(1)b(1) r₁₂⁻¹ c(2)d(2) over
+// contracted Gaussian shells.
+//
+// Algorithm: M. Head-Gordon and J. A. Pople, J. Chem. Phys. 89, 5777 (1988)
+// ("HGP"). For every pair of primitive pairs the vertical recurrence of
+// S. Obara and A. Saika, J. Chem. Phys. 84, 3963 (1986), eq. (39), builds
+// [e0|f0]^(0) for la ≤ |e| ≤ la+lb, lc ≤ |f| ≤ lc+ld from the Boys
+// function values F_m(T); those are summed over primitives (contracted)
+// and the horizontal recurrence (a,b+1ᵢ| = (a+1ᵢ,b| + (A−B)ᵢ(a,b| of HGP,
+// eq. (18), moves angular momentum onto b and d on contracted quantities.
+// The Cartesian result is finally mapped to the basis functions of each
+// shell (shellData.trans).
+//
+// Shell-pair data (product exponents, centres, the exp(−αβ/ζ·AB²)
+// prefactor) are computed once per pair in NewERI. Primitive pairs whose
+// contribution is negligible are dropped there (see eriPrimThreshold).
+// Shell quartets are reordered internally so that la ≥ lb, lc ≥ ld and the
+// bra pair is the "larger" one; common low angular-momentum classes use
+// straight-line code written by internal/gen (eri_gen.go), all others the
+// table-driven code in eri_generic.go.
+
+import (
+	"math"
+	"runtime"
+	"sync"
+)
+
+// eriPrimThreshold drops a primitive pair (α on A, β on B) when the bound
+//
+//	|c_α c_β| (π/ζ)^{3/2} exp(−αβ/ζ·|AB|²) (|PA|+ζ^{−1/2})^la (|PB|+ζ^{−1/2})^lb
+//
+// (an upper bound of the magnitude of its charge distribution, with c the
+// coefficients of unnormalized primitives and ζ = α+β) is below it. The
+// primitive product then changes no integral by more than about this
+// threshold times the largest Coulomb potential of a normalized
+// distribution, well below the 1e-12 accuracy aimed at (common practice:
+// drop primitive products below ~1e-15).
+const eriPrimThreshold = 1e-15
+
+// eriPrim is the data of one kept primitive pair.
+type eriPrim struct {
+	zeta float64    // ζ = α+β
+	oo2z float64    // 1/(2ζ)
+	p    [3]float64 // P = (αA+βB)/ζ
+	pa   [3]float64 // P − A
+	k    float64    // c_α c_β exp(−αβ/ζ·AB²)/ζ · √2 π^{5/4}
+}
+
+// eriPair is the prepared data of a shell pair, oriented so that la ≥ lb.
+type eriPair struct {
+	a, b   int // shell indices; shell a has the higher angular momentum
+	la, lb int
+	ab     [3]float64 // A − B
+	prims  []eriPrim
+}
+
+// key orders pairs: the pair with the larger key goes into the bra.
+func (p *eriPair) key() int { return (p.la+p.lb)*16 + p.la }
+
+// eriShellInfo holds what the final transformation needs of a shell.
+type eriShellInfo struct {
+	l, ncart, nfunc int
+	// scale is non-nil when trans is diagonal (Cartesian shells): the
+	// diagonal. It is nil for identity and for general (pure) transforms.
+	scale   []float64
+	general bool // trans is a general nfunc×ncart matrix
+	trans   []float64
+}
+
+// ERIEngine computes electron-repulsion integrals over the shells of a
+// Basis. It is immutable after NewERI and safe for concurrent use; each
+// goroutine needs its own ERIWorkspace.
+type ERIEngine struct {
+	basis   *Basis
+	nshell  int
+	maxL    int
+	pairs   []eriPair // triangular: index i(i+1)/2+j for i ≥ j
+	info    []eriShellInfo
+	schwarz []float64 // nshell×nshell
+}
+
+// NumShells is the number of shells of the basis.
+func (e *ERIEngine) NumShells() int { return e.nshell }
+
+// NewERI prepares electron-repulsion integrals for basis b: shell-pair data
+// and Schwarz bounds. Shells of angular momentum above 5 are not supported
+// and make NewERI panic (the basis sets poise ships stop at 5 for orbital
+// basis sets).
+func NewERI(b *Basis) *ERIEngine {
+	e := &ERIEngine{basis: b, nshell: len(b.shells), maxL: b.MaxL}
+	if b.MaxL > eriMaxL {
+		panic("integral: NewERI: angular momentum above 5 is not supported")
+	}
+	e.info = make([]eriShellInfo, e.nshell)
+	for i := range b.shells {
+		e.info[i] = newERIShellInfo(&b.shells[i])
+	}
+	e.pairs = make([]eriPair, e.nshell*(e.nshell+1)/2)
+	for i := 0; i < e.nshell; i++ {
+		for j := 0; j <= i; j++ {
+			e.pairs[i*(i+1)/2+j] = newERIPair(b, i, j)
+		}
+	}
+	e.schwarz = make([]float64, e.nshell*e.nshell)
+	e.computeSchwarz()
+	return e
+}
+
+func newERIShellInfo(s *shellData) eriShellInfo {
+	in := eriShellInfo{l: s.l, ncart: s.ncart, nfunc: s.nfunc, trans: s.trans}
+	diag, ident := s.nfunc == s.ncart, s.nfunc == s.ncart
+	for r := 0; r < s.nfunc; r++ {
+		for c := 0; c < s.ncart; c++ {
+			v := s.trans[r*s.ncart+c]
+			if r != c && v != 0 {
+				diag, ident = false, false
+			}
+			if r == c && v != 1 {
+				ident = false
+			}
+		}
+	}
+	switch {
+	case ident:
+	case diag:
+		in.scale = make([]float64, s.ncart)
+		for r := range in.scale {
+			in.scale[r] = s.trans[r*s.ncart+r]
+		}
+	default:
+		in.general = true
+	}
+	return in
+}
+
+// newERIPair prepares the pair of shells i and j.
+func newERIPair(b *Basis, i, j int) eriPair {
+	sa, sb := &b.shells[i], &b.shells[j]
+	p := eriPair{a: i, b: j}
+	if sb.l > sa.l {
+		sa, sb = sb, sa
+		p.a, p.b = j, i
+	}
+	p.la, p.lb = sa.l, sb.l
+	var ab2 float64
+	for k := 0; k < 3; k++ {
+		p.ab[k] = sa.center[k] - sb.center[k]
+		ab2 += p.ab[k] * p.ab[k]
+	}
+	pre := math.Sqrt2 * math.Pow(math.Pi, 1.25)
+	for u, al := range sa.exps {
+		for v, be := range sb.exps {
+			z := al + be
+			kab := math.Exp(-al * be / z * ab2)
+			c := sa.coefs[u] * sb.coefs[v]
+			var pr eriPrim
+			pr.zeta = z
+			pr.oo2z = 0.5 / z
+			var dpa, dpb float64
+			for k := 0; k < 3; k++ {
+				pr.p[k] = (al*sa.center[k] + be*sb.center[k]) / z
+				pr.pa[k] = pr.p[k] - sa.center[k]
+				dpa += pr.pa[k] * pr.pa[k]
+				d := pr.p[k] - sb.center[k]
+				dpb += d * d
+			}
+			s := 1 / math.Sqrt(z)
+			bound := math.Abs(c) * math.Pow(math.Pi/z, 1.5) * kab *
+				math.Pow(math.Sqrt(dpa)+s, float64(p.la)) * math.Pow(math.Sqrt(dpb)+s, float64(p.lb))
+			if bound < eriPrimThreshold {
+				continue
+			}
+			pr.k = c * kab / z * pre
+			p.prims = append(p.prims, pr)
+		}
+	}
+	return p
+}
+
+// pair returns the prepared data of shells i and j (either order).
+func (e *ERIEngine) pair(i, j int) *eriPair {
+	if i < j {
+		i, j = j, i
+	}
+	return &e.pairs[i*(i+1)/2+j]
+}
+
+// computeSchwarz fills the Schwarz bounds, pairs split among goroutines in
+// fixed chunks (each entry is computed independently, so the result does
+// not depend on the number of goroutines).
+func (e *ERIEngine) computeSchwarz() {
+	np := len(e.pairs)
+	workers := runtime.GOMAXPROCS(0)
+	const chunk = 64
+	var next int
+	var mu sync.Mutex
+	var wg sync.WaitGroup
+	for t := 0; t < workers; t++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			w := e.NewWorkspace()
+			for {
+				mu.Lock()
+				start := next
+				next += chunk
+				mu.Unlock()
+				if start >= np {
+					return
+				}
+				for idx := start; idx < min(start+chunk, np); idx++ {
+					i := int((math.Sqrt(float64(8*idx+1)) - 1) / 2)
+					for i*(i+1)/2 > idx {
+						i--
+					}
+					for (i+1)*(i+2)/2 <= idx {
+						i++
+					}
+					j := idx - i*(i+1)/2
+					v := e.Quartet(w, i, j, i, j)
+					ni, nj := e.info[i].nfunc, e.info[j].nfunc
+					n := ni * nj
+					var mx float64
+					for ab := 0; ab < n; ab++ {
+						mx = math.Max(mx, math.Abs(v[ab*n+ab]))
+					}
+					s := math.Sqrt(mx)
+					e.schwarz[i*e.nshell+j] = s
+					e.schwarz[j*e.nshell+i] = s
+				}
+			}
+		}()
+	}
+	wg.Wait()
+}
+
+// Schwarz returns sqrt(max |(ab|ab)|) over the functions a of shell i and
+// b of shell j: |(ab|cd)| ≤ Schwarz(i,j)·Schwarz(k,l) for a∈i, b∈j, c∈k, d∈l.
+func (e *ERIEngine) Schwarz(i, j int) float64 { return e.schwarz[i*e.nshell+j] }
+
+// SchwarzMatrix returns a copy of the nshell×nshell matrix of Schwarz bounds
+// (row-major).
+func (e *ERIEngine) SchwarzMatrix() []float64 { return append([]float64(nil), e.schwarz...) }
+
+// ERIWorkspace is the scratch memory of one goroutine. Quartet does not
+// allocate once a workspace has seen the largest class.
+type ERIWorkspace struct {
+	boys [eriMaxM + 1]float64
+	vrr  []float64 // generic vertical recursion, all levels
+	acc  []float64 // contracted [e0|f0]
+	h1   []float64 // horizontal recursion and transformation buffers
+	h2   []float64
+	out  []float64 // final integrals
+}
+
+// NewWorkspace returns scratch memory for Quartet, sized for the largest
+// shell quartet of the engine's basis.
+func (e *ERIEngine) NewWorkspace() *ERIWorkspace {
+	w := &ERIWorkspace{}
+	L := e.maxL
+	// Generic vertical recursion: Lab = Lcd = 2L is the largest.
+	nv := eriVRRSize(2*L, 2*L)
+	na, nh := 0, 0
+	for la := 0; la <= L; la++ {
+		for lb := 0; lb <= la; lb++ {
+			for lc := 0; lc <= L; lc++ {
+				for ld := 0; ld <= lc; ld++ {
+					a, h := eriHRRSizes(la, lb, lc, ld)
+					na = max(na, a)
+					nh = max(nh, h)
+				}
+			}
+		}
+	}
+	nc := basisNCart(L)
+	nh = max(nh, nc*nc*nc*nc)
+	w.vrr = make([]float64, nv)
+	w.acc = make([]float64, na)
+	w.h1 = make([]float64, nh)
+	w.h2 = make([]float64, nh)
+	w.out = make([]float64, nh)
+	return w
+}
+
+func basisNCart(l int) int { return (l + 1) * (l + 2) / 2 }
+
+// Quartet returns the integrals (ab|cd) for a in shell i, b in j, c in k,
+// d in l over the final basis functions, row-major [a][b][c][d]. The slice
+// belongs to w and is valid until the next call with w.
+func (e *ERIEngine) Quartet(w *ERIWorkspace, i, j, k, l int) []float64 {
+	bra, ket := e.pair(i, j), e.pair(k, l)
+	// pos[x] is the position (0…3 in the request) of canonical shell x
+	// (A, B, C, D).
+	pos := [4]int{0, 1, 2, 3}
+	if bra.a != i {
+		pos[0], pos[1] = 1, 0
+	}
+	if ket.a != k {
+		pos[2], pos[3] = 3, 2
+	}
+	if ket.key() > bra.key() {
+		bra, ket = ket, bra
+		pos = [4]int{pos[2], pos[3], pos[0], pos[1]}
+	}
+	cart := e.cartesian(w, bra, ket)
+	return e.finish(w, cart, [4]int{bra.a, bra.b, ket.a, ket.b}, pos)
+}
+
+// cartesian returns (AB|CD) over axially normalized Cartesian components
+// for a canonical quartet, row-major.
+func (e *ERIEngine) cartesian(w *ERIWorkspace, bra, ket *eriPair) []float64 {
+	if f := eriGenTable[eriClass(bra.la, bra.lb, ket.la, ket.lb)]; f != nil {
+		return f(w, bra, ket)
+	}
+	return e.generic(w, bra, ket)
+}
+
+// eriClass indexes canonical classes (la ≥ lb, lc ≥ ld).
+func eriClass(la, lb, lc, ld int) int {
+	return ((la*(eriMaxL+1)+lb)*(eriMaxL+1)+lc)*(eriMaxL+1) + ld
+}
+
+// eriGenFunc computes a canonical quartet of one class with straight-line
+// code and returns the Cartesian integrals (in w.out or w.h1).
+type eriGenFunc func(w *ERIWorkspace, bra, ket *eriPair) []float64
+
+// finish maps canonical Cartesian integrals over shells sh (A, B, C, D) to
+// the final functions and the requested order: canonical shell x sits at
+// position pos[x] of the request.
+func (e *ERIEngine) finish(w *ERIWorkspace, cart []float64, sh, pos [4]int) []float64 {
+	var in [4]*eriShellInfo
+	var n [4]int // current dimensions
+	anyGeneral := false
+	for x := 0; x < 4; x++ {
+		in[x] = &e.info[sh[x]]
+		n[x] = in[x].ncart
+		anyGeneral = anyGeneral || in[x].general
+	}
+	src := cart
+	if anyGeneral {
+		buf := [2][]float64{w.h1, w.h2}
+		if &cart[0] == &w.h1[0] {
+			buf = [2][]float64{w.h2, w.h1}
+		}
+		bi := 0
+		for x := 0; x < 4; x++ {
+			if !in[x].general {
+				continue
+			}
+			pre, post := 1, 1
+			for y := 0; y < x; y++ {
+				pre *= n[y]
+			}
+			for y := x + 1; y < 4; y++ {
+				post *= n[y]
+			}
+			dst := buf[bi]
+			eriTransformAxis(dst, src, pre, in[x].ncart, in[x].nfunc, post, in[x].trans)
+			n[x] = in[x].nfunc
+			src = dst
+			bi ^= 1
+		}
+	}
+	natural := pos == [4]int{0, 1, 2, 3}
+	noScale := in[0].scale == nil && in[1].scale == nil && in[2].scale == nil && in[3].scale == nil
+	total := n[0] * n[1] * n[2] * n[3]
+	if natural && noScale {
+		return src[:total]
+	}
+	// Strides of the request.
+	var dims [4]int
+	for x := 0; x < 4; x++ {
+		dims[pos[x]] = n[x]
+	}
+	var rs [4]int
+	rs[3] = 1
+	rs[2] = dims[3]
+	rs[1] = dims[2] * dims[3]
+	rs[0] = dims[1] * dims[2] * dims[3]
+	sA, sB, sC, sD := rs[pos[0]], rs[pos[1]], rs[pos[2]], rs[pos[3]]
+	out := w.out[:total]
+	if &src[0] == &out[0] {
+		out = w.h1[:total]
+		if &src[0] == &w.h1[0] {
+			out = w.h2[:total]
+		}
+	}
+	scA, scB, scC, scD := eriScale(in[0], n[0]), eriScale(in[1], n[1]), eriScale(in[2], n[2]), eriScale(in[3], n[3])
+	idx := 0
+	for a := 0; a < n[0]; a++ {
+		fa := scA[a]
+		for b := 0; b < n[1]; b++ {
+			fab := fa * scB[b]
+			for c := 0; c < n[2]; c++ {
+				fabc := fab * scC[c]
+				o := a*sA + b*sB + c*sC
+				for d := 0; d < n[3]; d++ {
+					out[o+d*sD] = src[idx] * fabc * scD[d]
+					idx++
+				}
+			}
+		}
+	}
+	return out
+}
+
+// eriScale returns the diagonal scale of a shell's n current components
+// (ones for identity and for general transforms, which have already been
+// applied).
+func eriScale(in *eriShellInfo, n int) []float64 {
+	if in.scale == nil {
+		return eriOnes[:n]
+	}
+	return in.scale[:n]
+}
+
+// eriOnes is a read-only vector of ones.
+var eriOnes = func() []float64 {
+	v := make([]float64, basisNCart(eriMaxL+2))
+	for i := range v {
+		v[i] = 1
+	}
+	return v
+}()
+
+// eriTransformAxis applies the nf×nc matrix m to the middle index of src
+// viewed as [pre][nc][post], writing dst as [pre][nf][post].
+func eriTransformAxis(dst, src []float64, pre, nc, nf, post int, m []float64) {
+	for p := 0; p < pre; p++ {
+		for f := 0; f < nf; f++ {
+			d := dst[(p*nf+f)*post : (p*nf+f+1)*post]
+			clear(d)
+			row := m[f*nc : (f+1)*nc]
+			for c, coef := range row {
+				if coef == 0 {
+					continue
+				}
+				s := src[(p*nc+c)*post : (p*nc+c+1)*post]
+				for q := range d {
+					d[q] += coef * s[q]
+				}
+			}
+		}
+	}
+}
+
+// Tensor returns the full nbf⁴ tensor of integrals (ab|cd), row-major. It
+// is meant for tests and very small systems.
+func (e *ERIEngine) Tensor() []float64 {
+	nbf := e.basis.NBF
+	off := e.basis.Offsets
+	t := make([]float64, nbf*nbf*nbf*nbf)
+	w := e.NewWorkspace()
+	for i := 0; i < e.nshell; i++ {
+		for j := 0; j <= i; j++ {
+			for k := 0; k <= i; k++ {
+				lmax := k
+				if k == i {
+					lmax = j
+				}
+				for l := 0; l <= lmax; l++ {
+					v := e.Quartet(w, i, j, k, l)
+					ni, nj, nk, nl := e.info[i].nfunc, e.info[j].nfunc, e.info[k].nfunc, e.info[l].nfunc
+					idx := 0
+					for a := off[i]; a < off[i]+ni; a++ {
+						for b := off[j]; b < off[j]+nj; b++ {
+							for c := off[k]; c < off[k]+nk; c++ {
+								for d := off[l]; d < off[l]+nl; d++ {
+									x := v[idx]
+									idx++
+									ab, ba, cd, dc := a*nbf+b, b*nbf+a, c*nbf+d, d*nbf+c
+									n2 := nbf * nbf
+									t[ab*n2+cd], t[ba*n2+cd], t[ab*n2+dc], t[ba*n2+dc] = x, x, x, x
+									t[cd*n2+ab], t[dc*n2+ab], t[cd*n2+ba], t[dc*n2+ba] = x, x, x, x
+								}
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+	return t
+}
