@@ -130,3 +130,17 @@ func shellTransform(l int, pure bool) []float64 {
 	}
 	return m
 }
+
+// ShellCoefficients returns the normalized contraction coefficients of shell
+// i: they multiply unnormalized primitives x^l·exp(−α r²) and give the
+// axial Cartesian component unit norm. The slice must not be modified.
+func (b *Basis) ShellCoefficients(i int) []float64 { return b.shells[i].coefs }
+
+// ShellTransform returns the nfunc×ncart row-major matrix of shell i that
+// maps axially normalized Cartesian components (in the order of
+// basis.Shell) to the final functions. The slice must not be modified.
+func (b *Basis) ShellTransform(i int) []float64 { return b.shells[i].trans }
+
+// CartesianExponents lists (lx, ly, lz) of the Cartesian components of
+// angular momentum l in the order of basis.Shell.
+func CartesianExponents(l int) [][3]int { return cartesianExponents(l) }

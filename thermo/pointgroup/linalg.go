@@ -103,54 +103,117 @@ func maxDiff(a, b *mat) float64 {
 	return d
 }
 
-// eigSym3 diagonalizes the symmetric matrix a by cyclic Jacobi rotations.
-// It returns the eigenvalues in ascending order and the eigenvectors as the
-// rows of vecs (vecs[k] belongs to vals[k]).
+// eigSym3 diagonalizes the symmetric matrix a. It returns the eigenvalues
+// in ascending order and the eigenvectors as the rows of vecs (vecs[k]
+// belongs to vals[k]).
 func eigSym3(a mat) (vals [3]float64, vecs [3]vec) {
-	v := identity()
-	for sweep := 0; sweep < 50; sweep++ {
-		off := a[0][1]*a[0][1] + a[0][2]*a[0][2] + a[1][2]*a[1][2]
-		scaleA := a[0][0]*a[0][0] + a[1][1]*a[1][1] + a[2][2]*a[2][2]
-		if off <= 1e-30*scaleA || off == 0 {
+	flat := make([]float64, 9)
+	for i := 0; i < 3; i++ {
+		copy(flat[3*i:3*i+3], a[i][:])
+	}
+	w, v := jacobi(flat, 3)
+	for k := 0; k < 3; k++ {
+		vals[k] = w[k]
+		vecs[k] = vec{v[0*3+k], v[1*3+k], v[2*3+k]}
+	}
+	return vals, vecs
+}
+
+// jacobi diagonalizes the symmetric n×n matrix a (row-major, overwritten)
+// by cyclic Jacobi rotations (G. H. Golub, C. F. Van Loan, Matrix
+// Computations, 4th ed., §8.5). It returns the eigenvalues in ascending
+// order and the eigenvectors as the columns of v (row-major n×n).
+func jacobi(a []float64, n int) (vals, v []float64) {
+	v = make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		v[i*n+i] = 1
+	}
+	for sweep := 0; sweep < 100; sweep++ {
+		off, diag := 0.0, 0.0
+		for p := 0; p < n; p++ {
+			diag += a[p*n+p] * a[p*n+p]
+			for q := p + 1; q < n; q++ {
+				off += a[p*n+q] * a[p*n+q]
+			}
+		}
+		if off == 0 || off <= 1e-32*diag {
 			break
 		}
-		for p := 0; p < 2; p++ {
-			for q := p + 1; q < 3; q++ {
-				if a[p][q] == 0 {
+		for p := 0; p < n-1; p++ {
+			for q := p + 1; q < n; q++ {
+				apq := a[p*n+q]
+				if apq == 0 {
 					continue
 				}
-				theta := (a[q][q] - a[p][p]) / (2 * a[p][q])
+				theta := (a[q*n+q] - a[p*n+p]) / (2 * apq)
 				t := math.Copysign(1, theta) / (math.Abs(theta) + math.Sqrt(theta*theta+1))
 				c := 1 / math.Sqrt(t*t+1)
 				s := t * c
-				// a ← Jᵀ a J with J the rotation in the (p,q) plane.
-				for k := 0; k < 3; k++ {
-					akp, akq := a[k][p], a[k][q]
-					a[k][p] = c*akp - s*akq
-					a[k][q] = s*akp + c*akq
+				// a ← Jᵀ a J, v ← v J with J the rotation in the (p,q) plane.
+				for k := 0; k < n; k++ {
+					akp, akq := a[k*n+p], a[k*n+q]
+					a[k*n+p] = c*akp - s*akq
+					a[k*n+q] = s*akp + c*akq
 				}
-				for k := 0; k < 3; k++ {
-					apk, aqk := a[p][k], a[q][k]
-					a[p][k] = c*apk - s*aqk
-					a[q][k] = s*apk + c*aqk
+				for k := 0; k < n; k++ {
+					apk, aqk := a[p*n+k], a[q*n+k]
+					a[p*n+k] = c*apk - s*aqk
+					a[q*n+k] = s*apk + c*aqk
 				}
-				for k := 0; k < 3; k++ {
-					vkp, vkq := v[k][p], v[k][q]
-					v[k][p] = c*vkp - s*vkq
-					v[k][q] = s*vkp + c*vkq
+				for k := 0; k < n; k++ {
+					vkp, vkq := v[k*n+p], v[k*n+q]
+					v[k*n+p] = c*vkp - s*vkq
+					v[k*n+q] = s*vkp + c*vkq
 				}
 			}
 		}
 	}
-	idx := [3]int{0, 1, 2}
-	for i := 1; i < 3; i++ {
-		for j := i; j > 0 && a[idx[j]][idx[j]] < a[idx[j-1]][idx[j-1]]; j-- {
+	idx := make([]int, n)
+	for i := range idx {
+		idx[i] = i
+	}
+	for i := 1; i < n; i++ {
+		for j := i; j > 0 && a[idx[j]*n+idx[j]] < a[idx[j-1]*n+idx[j-1]]; j-- {
 			idx[j], idx[j-1] = idx[j-1], idx[j]
 		}
 	}
+	vals = make([]float64, n)
+	sorted := make([]float64, n*n)
 	for k, c := range idx {
-		vals[k] = a[c][c]
-		vecs[k] = vec{v[0][c], v[1][c], v[2][c]}
+		vals[k] = a[c*n+c]
+		for i := 0; i < n; i++ {
+			sorted[i*n+k] = v[i*n+c]
+		}
 	}
-	return vals, vecs
+	return vals, sorted
+}
+
+// bestRotation returns the rotation R that maximizes Σ w_i b_i·(R a_i), the
+// weighted least-squares superposition of the points a onto b, from the
+// unit quaternion of B. K. P. Horn, J. Opt. Soc. Am. A 4, 629 (1987).
+func bestRotation(a, b []vec, w []float64) mat {
+	var s mat // S_xy = Σ w a_x b_y
+	for i := range a {
+		for x := 0; x < 3; x++ {
+			for y := 0; y < 3; y++ {
+				s[x][y] += w[i] * a[i][x] * b[i][y]
+			}
+		}
+	}
+	sxx, sxy, sxz := s[0][0], s[0][1], s[0][2]
+	syx, syy, syz := s[1][0], s[1][1], s[1][2]
+	szx, szy, szz := s[2][0], s[2][1], s[2][2]
+	n := []float64{
+		sxx + syy + szz, syz - szy, szx - sxz, sxy - syx,
+		syz - szy, sxx - syy - szz, sxy + syx, szx + sxz,
+		szx - sxz, sxy + syx, -sxx + syy - szz, syz + szy,
+		sxy - syx, szx + sxz, syz + szy, -sxx - syy + szz,
+	}
+	_, v := jacobi(n, 4)
+	q0, qx, qy, qz := v[0*4+3], v[1*4+3], v[2*4+3], v[3*4+3]
+	return mat{
+		{q0*q0 + qx*qx - qy*qy - qz*qz, 2 * (qx*qy - q0*qz), 2 * (qx*qz + q0*qy)},
+		{2 * (qy*qx + q0*qz), q0*q0 - qx*qx + qy*qy - qz*qz, 2 * (qy*qz - q0*qx)},
+		{2 * (qz*qx - q0*qy), 2 * (qz*qy + q0*qx), q0*q0 - qx*qx - qy*qy + qz*qz},
+	}
 }

@@ -76,6 +76,7 @@ type detector struct {
 	kind    []int   // kind index of each atom
 	byKind  [][]int // atoms of each kind
 	radius  []float64
+	mass    []float64 // u
 	tol     float64
 	used    []bool
 	moments [3]float64
@@ -134,6 +135,7 @@ func newDetector(atoms []Atom, tol float64) (*detector, vec, error) {
 		d.kind = append(d.kind, k)
 		d.pos = append(d.pos, p)
 		d.radius = append(d.radius, norm(p))
+		d.mass = append(d.mass, a.Mass)
 	}
 	for i := range d.pos {
 		for j := i + 1; j < len(d.pos); j++ {

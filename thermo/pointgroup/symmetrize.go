@@ -88,13 +88,22 @@ func (d *detector) symmetrize(r *Result) ([]vec, error) {
 			lastErr = errors.New("the ideal group does not map the atoms onto each other")
 			continue
 		}
-		for i := range out {
-			var s vec
-			for k := range ops {
-				t := transpose(&ops[k])
-				s = add(s, mulVec(&t, d.pos[perms[k][i]]))
+		// Average over the group, then turn the ideal group so that the
+		// average lies as close as possible to the input (a few rounds of
+		// least-squares superposition), and average again.
+		for round := 0; ; round++ {
+			d.average(ops, perms, out)
+			if round == 8 {
+				break
 			}
-			out[i] = scale(1/float64(len(ops)), s)
+			rot := bestRotation(out, d.pos, d.mass)
+			id := identity()
+			if maxDiff(&rot, &id) < 1e-13 {
+				break
+			}
+			for k := range ops {
+				ops[k] = conj(&rot, ops[k])
+			}
 		}
 		return out, nil
 	}
@@ -290,4 +299,16 @@ func (d *detector) idealGenerators(r *Result) [][]mat {
 		return [][]mat{in(f, cn, rotation(ex, math.Pi), reflection(vec{-math.Sin(a), math.Cos(a), 0}))}
 	}
 	return nil
+}
+
+// average sets out[i] = (1/|G|) Σ_R Rᵀ x_{π_R(i)}.
+func (d *detector) average(ops []mat, perms [][]int, out []vec) {
+	for i := range out {
+		var s vec
+		for k := range ops {
+			t := transpose(&ops[k])
+			s = add(s, mulVec(&t, d.pos[perms[k][i]]))
+		}
+		out[i] = scale(1/float64(len(ops)), s)
+	}
 }

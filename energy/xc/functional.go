@@ -1,0 +1,248 @@
+package xc
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+)
+
+// kernel identifies one component functional.
+type kernel int
+
+const (
+	kSlater kernel = iota // Slater exchange (libxc LDA_X, 1)
+	kVWN                  // VWN correlation, either parametrization (7, 8)
+	kPW                   // PW92 correlation, either constant set (12, 13)
+	kB88                  // Becke 88 exchange (GGA_X_B88, 106)
+	kPBEX                 // PBE exchange (GGA_X_PBE, 101)
+	kLYP                  // LYP correlation (GGA_C_LYP, 131)
+	kPBEC                 // PBE correlation (GGA_C_PBE, 130)
+)
+
+// term is a component functional with its weight, thresholds and constants.
+type term struct {
+	kind kernel
+	coef float64
+	sc   screen
+	pw   pwSet  // kPW, kPBEC
+	vwn  vwnSet // kVWN
+}
+
+func (k kernel) isGGA() bool { return k >= kB88 }
+
+func slaterTerm(c float64) term { return term{kind: kSlater, coef: c, sc: newScreen(densThresholdDefault)} }
+func vwnTerm(c float64, s vwnSet) term {
+	return term{kind: kVWN, coef: c, sc: newScreen(densThresholdDefault), vwn: s}
+}
+func pwTerm(c float64, s pwSet) term {
+	return term{kind: kPW, coef: c, sc: newScreen(densThresholdDefault), pw: s}
+}
+func b88Term(c float64) term  { return term{kind: kB88, coef: c, sc: newScreen(densThresholdDefault)} }
+func pbexTerm(c float64) term { return term{kind: kPBEX, coef: c, sc: newScreen(densThresholdDefault)} }
+func lypTerm(c float64) term  { return term{kind: kLYP, coef: c, sc: newScreen(densThresholdLYP)} }
+func pbecTerm(c float64) term {
+	return term{kind: kPBEC, coef: c, sc: newScreen(densThresholdPBEC), pw: pwModified()}
+}
+
+// Functional is an exchange–correlation functional: a weighted sum of
+// component functionals plus a fraction of exact (Hartree–Fock) exchange.
+// It is immutable after Lookup and safe for concurrent use.
+type Functional struct {
+	name  string
+	terms []term
+	exx   float64
+	gga   bool
+}
+
+func newFunctional(name string, exx float64, terms ...term) *Functional {
+	f := &Functional{name: name, terms: terms, exx: exx}
+	for _, t := range terms {
+		f.gga = f.gga || t.kind.isGGA()
+	}
+	return f
+}
+
+// b3lypTerms returns the B3LYP mixture as libxc builds HYB_GGA_XC_B3LYP
+// (402) and B3LYP5 (475): (1−a0−ax) Slater + ax B88 + (1−ac) VWN + ac LYP,
+// with a0 = 0.20, ax = 0.72, ac = 0.81 (A. D. Becke, J. Chem. Phys. 98,
+// 5648 (1993), eq. (2); P. J. Stephens, F. J. Devlin, C. F. Chabalowski,
+// M. J. Frisch, J. Phys. Chem. 98, 11623 (1994), with LYP for PW91).
+// B88 here is the whole functional (Slater plus gradient correction), so
+// the local exchange weight is 0.08 + 0.72 = 0.80 = 1 − a0.
+func b3lypTerms(vwn vwnSet) []term {
+	const a0, ax, ac = 0.20, 0.72, 0.81
+	return []term{slaterTerm(1.0 - a0 - ax), b88Term(ax), vwnTerm(1.0-ac, vwn), lypTerm(ac)}
+}
+
+// methods maps lower-case method names to constructors.
+var methods = map[string]func() *Functional{
+	"hf":  func() *Functional { return newFunctional("hf", 1) },
+	"lda": func() *Functional { return newFunctional("lda", 0, slaterTerm(1), vwnTerm(1, vwn5())) },
+	"blyp": func() *Functional {
+		return newFunctional("blyp", 0, b88Term(1), lypTerm(1))
+	},
+	"pbe": func() *Functional { return newFunctional("pbe", 0, pbexTerm(1), pbecTerm(1)) },
+	"b3lyp": func() *Functional {
+		return newFunctional("b3lyp", 0.20, b3lypTerms(vwnRPA())...)
+	},
+	"b3lyp5": func() *Functional {
+		return newFunctional("b3lyp5", 0.20, b3lypTerms(vwn5())...)
+	},
+	// PBE0: C. Adamo, V. Barone, J. Chem. Phys. 110, 6158 (1999);
+	// libxc HYB_GGA_XC_PBEH (406): 0.25 exact + 0.75 PBE X + PBE C.
+	"pbe0": func() *Functional {
+		return newFunctional("pbe0", 0.25, pbexTerm(1-0.25), pbecTerm(1))
+	},
+}
+
+// Names returns the method names Lookup accepts, sorted.
+func Names() []string {
+	names := make([]string, 0, len(methods))
+	for k := range methods {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// Lookup returns the functional of a method name (case-insensitive): hf,
+// lda, blyp, pbe, b3lyp, b3lyp5, pbe0.
+func Lookup(method string) (*Functional, error) {
+	key := strings.ToLower(strings.TrimSpace(method))
+	mk, ok := methods[key]
+	if !ok {
+		return nil, fmt.Errorf("xc: unknown method %q (known: %s)", method, strings.Join(Names(), ", "))
+	}
+	return mk(), nil
+}
+
+// Name returns the canonical (lower-case) method name.
+func (f *Functional) Name() string { return f.name }
+
+// ExactExchange returns the fraction of exact exchange the SCF must add to
+// the Kohn–Sham matrix (its exchange build scaled by this factor): 0 for
+// pure density functionals, 0.20 for B3LYP, 0.25 for PBE0, 1 for HF.
+func (f *Functional) ExactExchange() float64 { return f.exx }
+
+// IsGGA reports whether the functional depends on the density gradient,
+// so that sigma inputs and vsigma outputs are needed.
+func (f *Functional) IsGGA() bool { return f.gga }
+
+// IsHF reports whether this is Hartree–Fock: no density-functional part.
+func (f *Functional) IsHF() bool { return len(f.terms) == 0 }
+
+// NeedsGrid reports whether the functional has a part to integrate on a grid.
+func (f *Functional) NeedsGrid() bool { return len(f.terms) > 0 }
+
+func need(name string, s []float64, n int) {
+	if len(s) < n {
+		panic(fmt.Sprintf("xc: %s has length %d, need %d", name, len(s), n))
+	}
+}
+
+// EvalUnpolarized evaluates the functional at n points of a closed-shell
+// density. Inputs: rho = ρ (total density), sigma = |∇ρ|² (GGA only; may be
+// nil for LDA). Outputs, overwritten for the first n points: exc = e, the
+// energy per unit volume (E_xc = ∫ e d³r, hartree/bohr³), vrho = ∂e/∂ρ,
+// vsigma = ∂e/∂σ (GGA only; if non-nil for an LDA it is zeroed). Points
+// below a component's density threshold get zero from that component.
+// Slices shorter than n are a programming error and panic.
+func (f *Functional) EvalUnpolarized(n int, rho, sigma []float64, exc, vrho, vsigma []float64) {
+	need("rho", rho, n)
+	need("exc", exc, n)
+	need("vrho", vrho, n)
+	rho, exc, vrho = rho[:n], exc[:n], vrho[:n]
+	clear(exc)
+	clear(vrho)
+	if f.gga {
+		need("sigma", sigma, n)
+		need("vsigma", vsigma, n)
+		sigma, vsigma = sigma[:n], vsigma[:n]
+		clear(vsigma)
+	} else if vsigma != nil {
+		need("vsigma", vsigma, n)
+		clear(vsigma[:n])
+	}
+	for k := range f.terms {
+		t := &f.terms[k]
+		switch t.kind {
+		case kSlater:
+			slaterUnpol(t.coef, t.sc, rho, exc, vrho)
+		case kVWN:
+			vwnUnpol(t.coef, t.sc, &t.vwn, rho, exc, vrho)
+		case kPW:
+			pwUnpol(t.coef, t.sc, &t.pw, rho, exc, vrho)
+		case kB88:
+			ggaXUnpol(t.coef, t.sc, ggaXB88, rho, sigma, exc, vrho, vsigma)
+		case kPBEX:
+			ggaXUnpol(t.coef, t.sc, ggaXPBE, rho, sigma, exc, vrho, vsigma)
+		case kLYP:
+			lypUnpol(t.coef, t.sc, rho, sigma, exc, vrho, vsigma)
+		case kPBEC:
+			pbecUnpol(t.coef, t.sc, &t.pw, rho, sigma, exc, vrho, vsigma)
+		}
+	}
+}
+
+// EvalPolarized evaluates the functional at n points of a spin-polarized
+// density. Inputs: rhoA = ρα, rhoB = ρβ; sigmaAA = ∇ρα·∇ρα,
+// sigmaAB = ∇ρα·∇ρβ, sigmaBB = ∇ρβ·∇ρβ (GGA only; may be nil for LDA).
+// Outputs, overwritten for the first n points: exc = e (energy per
+// volume), vrhoA = ∂e/∂ρα, vrhoB = ∂e/∂ρβ, vsigmaAA = ∂e/∂σαα,
+// vsigmaAB = ∂e/∂σαβ, vsigmaBB = ∂e/∂σββ (GGA only; zeroed if non-nil for
+// an LDA). Slices shorter than n are a programming error and panic.
+func (f *Functional) EvalPolarized(n int, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB []float64,
+	exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB []float64) {
+	need("rhoA", rhoA, n)
+	need("rhoB", rhoB, n)
+	need("exc", exc, n)
+	need("vrhoA", vrhoA, n)
+	need("vrhoB", vrhoB, n)
+	rhoA, rhoB, exc, vrhoA, vrhoB = rhoA[:n], rhoB[:n], exc[:n], vrhoA[:n], vrhoB[:n]
+	clear(exc)
+	clear(vrhoA)
+	clear(vrhoB)
+	if f.gga {
+		need("sigmaAA", sigmaAA, n)
+		need("sigmaAB", sigmaAB, n)
+		need("sigmaBB", sigmaBB, n)
+		need("vsigmaAA", vsigmaAA, n)
+		need("vsigmaAB", vsigmaAB, n)
+		need("vsigmaBB", vsigmaBB, n)
+		sigmaAA, sigmaAB, sigmaBB = sigmaAA[:n], sigmaAB[:n], sigmaBB[:n]
+		vsigmaAA, vsigmaAB, vsigmaBB = vsigmaAA[:n], vsigmaAB[:n], vsigmaBB[:n]
+		clear(vsigmaAA)
+		clear(vsigmaAB)
+		clear(vsigmaBB)
+	} else {
+		for _, v := range [][]float64{vsigmaAA, vsigmaAB, vsigmaBB} {
+			if v != nil {
+				need("vsigma", v, n)
+				clear(v[:n])
+			}
+		}
+	}
+	for k := range f.terms {
+		t := &f.terms[k]
+		switch t.kind {
+		case kSlater:
+			slaterPol(t.coef, t.sc, rhoA, rhoB, exc, vrhoA, vrhoB)
+		case kVWN:
+			vwnPol(t.coef, t.sc, &t.vwn, rhoA, rhoB, exc, vrhoA, vrhoB)
+		case kPW:
+			pwPol(t.coef, t.sc, &t.pw, rhoA, rhoB, exc, vrhoA, vrhoB)
+		case kB88:
+			ggaXPol(t.coef, t.sc, ggaXB88, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
+				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
+		case kPBEX:
+			ggaXPol(t.coef, t.sc, ggaXPBE, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
+				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
+		case kLYP:
+			lypPol(t.coef, t.sc, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
+				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
+		case kPBEC:
+			pbecPol(t.coef, t.sc, &t.pw, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
+				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
+		}
+	}
+}
