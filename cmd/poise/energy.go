@@ -30,6 +30,10 @@ type energyReport struct {
 	NuclearRepulsionHartree  float64      `json:"nuclear_repulsion_hartree"`
 	OneElectronHartree       float64      `json:"one_electron_energy_hartree"`
 	TwoElectronHartree       float64      `json:"two_electron_energy_hartree"`
+	XCHartree                float64      `json:"exchange_correlation_hartree,omitempty"`
+	IntegratedElectrons      float64      `json:"integrated_electrons,omitempty"`
+	GridLevel                int          `json:"grid_level,omitempty"`
+	GridPoints               int          `json:"grid_points,omitempty"`
 	SSquared                 float64      `json:"s_squared"`
 	DipoleDebye              [3]float64   `json:"dipole_debye"`
 	DipoleTotalDebye         float64      `json:"dipole_total_debye"`
@@ -54,7 +58,8 @@ func newEnergyCmd() *cobra.Command {
 	cmd := &cobra.Command{
 		Use:   "energy FILE.xyz",
 		Short: "self-consistent-field energy of a molecule",
-		Long: "Computes the self-consistent-field energy of the molecule in FILE.xyz (Hartree–Fock)\n" +
+		Long: "Computes the self-consistent-field energy of the molecule in FILE.xyz (Hartree–Fock or\n" +
+			"Kohn–Sham DFT; default B3LYP/6-31G*)\n" +
 			"and prints its parts, the dipole moment, Mulliken charges and orbital energies.",
 		Args: exactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -132,6 +137,12 @@ func makeEnergyReport(path string, s *setup, res *scf.Result, threads int) *ener
 		Version:                 version,
 		GeometryAngstrom:        s.mol.PositionsAngstrom(),
 	}
+	if s.grid != nil {
+		rep.XCHartree = res.XCEnergy
+		rep.IntegratedElectrons = res.IntegratedElectrons
+		rep.GridLevel = s.gridLevel
+		rep.GridPoints = s.grid.NumPoints()
+	}
 	for k := 0; k < 3; k++ {
 		rep.DipoleDebye[k] = res.DipoleAU[k] * units.AUDebye
 	}
@@ -173,6 +184,9 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 		{"one-electron", fmt.Sprintf("%.10f", rep.OneElectronHartree), fmt.Sprintf("%.6f", rep.OneElectronHartree*units.HartreeEV)},
 		{"two-electron", fmt.Sprintf("%.10f", rep.TwoElectronHartree), fmt.Sprintf("%.6f", rep.TwoElectronHartree*units.HartreeEV)},
 	}
+	if rep.GridPoints > 0 {
+		rows = append(rows, []string{"exchange–correlation", fmt.Sprintf("%.10f", rep.XCHartree), fmt.Sprintf("%.6f", rep.XCHartree*units.HartreeEV)})
+	}
 	if err := writeTable(w, []string{"energy", "Eh", "eV"}, rows); err != nil {
 		return err
 	}
@@ -180,7 +194,11 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 	if rep.Unrestricted {
 		fmt.Fprintf(w, "; <S^2> = %.4f (exact %.4f)", rep.SSquared, exactS2(rep.Multiplicity))
 	}
-	fmt.Fprintf(w, "; wall time %.2f s\n\n", rep.WallSeconds)
+	fmt.Fprintf(w, "; wall time %.2f s\n", rep.WallSeconds)
+	if rep.GridPoints > 0 {
+		fmt.Fprintf(w, "grid level %d: %d points; integrated electrons %.6f\n", rep.GridLevel, rep.GridPoints, rep.IntegratedElectrons)
+	}
+	fmt.Fprintln(w)
 
 	fmt.Fprintf(w, "dipole moment (debye, about the centre of mass): x %.4f  y %.4f  z %.4f  total %.4f\n\n",
 		rep.DipoleDebye[0], rep.DipoleDebye[1], rep.DipoleDebye[2], rep.DipoleTotalDebye)

@@ -12,8 +12,12 @@ import (
 	"github.com/spf13/cobra"
 
 	"poise/energy/basis"
+	"poise/energy/dft"
+	"poise/energy/grid"
+	"poise/energy/integral"
 	"poise/energy/molecule"
 	"poise/energy/scf"
+	"poise/energy/xc"
 )
 
 // levelFlags are the level-of-theory and resource flags shared by every
@@ -29,11 +33,12 @@ type levelFlags struct {
 	threads      int
 	memory       string
 	maxIter      int
+	gridLevel    int
 }
 
 func (f *levelFlags) register(cmd *cobra.Command) {
 	fl := cmd.Flags()
-	fl.StringVar(&f.method, "method", "hf", "electronic-structure method: hf")
+	fl.StringVar(&f.method, "method", "b3lyp", "electronic-structure method: "+strings.Join(xc.Names(), ", "))
 	fl.StringVar(&f.basisName, "basis", "6-31g*", "basis set name (see 'poise basis list')")
 	fl.IntVar(&f.charge, "charge", 0, "total charge of the molecule")
 	fl.IntVar(&f.multiplicity, "multiplicity", 0, "spin multiplicity 2S+1 (default: 1 for an even electron count, 2 for odd)")
@@ -43,6 +48,7 @@ func (f *levelFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.threads, "threads", runtime.NumCPU(), "number of threads")
 	fl.StringVar(&f.memory, "memory", "2GiB", "memory budget (e.g. 800MiB, 4GiB); integrals are kept in memory when they fit, and Go's memory limit is set to it")
 	fl.IntVar(&f.maxIter, "max-iterations", scf.DefaultMaxIterations, "largest number of SCF iterations")
+	fl.IntVar(&f.gridLevel, "grid", grid.DefaultLevel, "DFT integration grid level, 1 (coarse) to 5 (finest)")
 }
 
 // parseMemory reads sizes such as "2GiB", "512MiB", "4GB" or a plain number
@@ -69,13 +75,16 @@ func parseMemory(s string) (int64, error) {
 
 // setup is everything a calculation needs once the flags are read.
 type setup struct {
-	mol      *molecule.Molecule
-	set      *basis.Set
-	shells   []basis.Shell
-	conv     basis.Convention
-	opts     scf.Options
-	method   string
-	memBytes int64
+	mol       *molecule.Molecule
+	set       *basis.Set
+	shells    []basis.Shell
+	conv      basis.Convention
+	opts      scf.Options
+	method    string
+	memBytes  int64
+	fn        *xc.Functional
+	gridLevel int
+	grid      *grid.Grid
 }
 
 // prepare reads the molecule and checks the level of theory. Every problem
@@ -91,9 +100,13 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 	if err != nil {
 		return nil, usageErr(err)
 	}
-	method := strings.ToLower(f.method)
-	if method != "hf" {
-		return nil, usageErr(fmt.Errorf("--method %q: available methods are: hf", f.method))
+	fn, err := xc.Lookup(f.method)
+	if err != nil {
+		return nil, usageErr(fmt.Errorf("--method %q: available methods are %s", f.method, strings.Join(xc.Names(), ", ")))
+	}
+	method := fn.Name()
+	if _, err := grid.LevelInfo(f.gridLevel); err != nil {
+		return nil, usageErr(fmt.Errorf("--grid %d: give a level from 1 (coarse) to 5 (finest)", f.gridLevel))
 	}
 	mol, err := molecule.ReadXYZFile(path)
 	if err != nil {
@@ -117,7 +130,7 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 		return nil, usageErr(fmt.Errorf("%s: %w", path, err))
 	}
 	debug.SetMemoryLimit(mem)
-	return &setup{
+	st := &setup{
 		mol:      mol,
 		set:      set,
 		shells:   shells,
@@ -130,12 +143,51 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 			Threads:       f.threads,
 			MemoryBytes:   mem,
 		},
-	}, nil
+		fn:        fn,
+		gridLevel: f.gridLevel,
+	}
+	return st, nil
+}
+
+// attachXC builds the DFT grid (oriented by the molecule's standard frame
+// unless frame is given) and sets the exchange–correlation potential of the
+// SCF options. Hartree–Fock needs nothing.
+func (s *setup) attachXC(frame *grid.Frame) error {
+	if !s.fn.NeedsGrid() {
+		s.opts.XC = nil
+		return nil
+	}
+	z := make([]int, len(s.mol.Atoms))
+	pos := make([][3]float64, len(s.mol.Atoms))
+	for i, a := range s.mol.Atoms {
+		z[i], pos[i] = a.Z, a.Position
+	}
+	var fr grid.Frame
+	if frame != nil {
+		fr = *frame
+	} else {
+		var err error
+		if fr, err = grid.StandardFrame(z, pos); err != nil {
+			return err
+		}
+	}
+	g, err := grid.New(z, pos, s.gridLevel, fr, s.opts.Threads)
+	if err != nil {
+		return err
+	}
+	s.grid = g
+	s.opts.XC = dft.New(s.fn, g, integral.NewBasis(s.shells), s.opts.Threads)
+	return nil
 }
 
 // runSCF runs the SCF and turns a convergence failure into exit status 3
 // with advice.
 func runSCF(ctx context.Context, s *setup) (*scf.Result, error) {
+	if s.opts.XC == nil && s.fn.NeedsGrid() {
+		if err := s.attachXC(nil); err != nil {
+			return nil, err
+		}
+	}
 	res, err := scf.Run(ctx, s.mol, s.shells, s.opts)
 	if errors.Is(err, scf.ErrNotConverged) {
 		return res, convergeErr(fmt.Errorf("%w\n  try: --max-iterations %d; a smaller basis first; check the geometry, charge and multiplicity; for open shells --unrestricted",

@@ -98,7 +98,11 @@ func ParseXYZ(name string, data []byte) (*Molecule, error) {
 		}
 	}
 	if len(lines)-2 < n {
-		return nil, fail(len(lines), "the first line says %d atoms but %d atom lines follow the comment line", n, found)
+		hint := ""
+		if len(lines)-2 == n-1 {
+			hint = " (the second line is a comment line, even when blank)"
+		}
+		return nil, fail(len(lines), "the first line says %s but %s the comment line%s", atoms(n), atomLines(found), hint)
 	}
 
 	m := &Molecule{
@@ -140,13 +144,27 @@ func ParseXYZ(name string, data []byte) (*Molecule, error) {
 		if _, err := strconv.Atoi(strings.TrimSpace(lines[extra])); err == nil {
 			return nil, fail(extra+1, "the file holds more than one structure (after %d atoms a new atom count follows); give one structure", n)
 		}
-		return nil, fail(extra+1, "the first line says %d atoms but %d atom lines follow the comment line", n, found)
+		return nil, fail(extra+1, "the first line says %s but %s the comment line", atoms(n), atomLines(found))
 	}
 	if i, j, d, ok := closestClash(m); ok {
 		return nil, fail(j+3, "atoms %d (%s) and %d (%s) are %.3g Å apart, closer than %.1f Å: is an atom duplicated, or are the coordinates in nanometres rather than ångström?",
 			i+1, m.Atoms[i].Symbol, j+1, m.Atoms[j].Symbol, d, MinDistanceAngstrom)
 	}
 	return m, nil
+}
+
+func atoms(n int) string {
+	if n == 1 {
+		return "1 atom"
+	}
+	return strconv.Itoa(n) + " atoms"
+}
+
+func atomLines(n int) string {
+	if n == 1 {
+		return "1 atom line follows"
+	}
+	return strconv.Itoa(n) + " atom lines follow"
 }
 
 // parseElement reads an element symbol or atomic number.

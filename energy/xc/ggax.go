@@ -93,11 +93,11 @@ func ggaXPol(c float64, sc screen, kind ggaXKind, rhoA, rhoB, sAA, sAB, sBB,
 			continue
 		}
 		saa, _, sbb := sc.clampSigmaPol(sAA[i], sAB[i], sBB[i])
-		n, _, opz, omz := spinVars(ra, rb)
+		n, opz, omz, frozen := exchangeSpin(ra, rb)
 		n13 := math.Cbrt(n)
 		var e, da, db, dsa, dsb float64
 		if ra > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, opz, omz)
+			p, dOwn, dOther := spinScale(n, n13, opz, omz, frozen)
 			ra13 := math.Cbrt(ra)
 			ra83 := ra13 * ra13 * ra * ra
 			x2 := saa / ra83
@@ -108,7 +108,7 @@ func ggaXPol(c float64, sc screen, kind ggaXKind, rhoA, rhoB, sAA, sAB, sBB,
 			dsa += slaterSpin * p * df / ra83
 		}
 		if rb > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, omz, opz)
+			p, dOwn, dOther := spinScale(n, n13, omz, opz, frozen)
 			rb13 := math.Cbrt(rb)
 			rb83 := rb13 * rb13 * rb * rb
 			x2 := sbb / rb83
@@ -118,7 +118,7 @@ func ggaXPol(c float64, sc screen, kind ggaXKind, rhoA, rhoB, sAA, sAB, sBB,
 			da += slaterSpin * dOther * f
 			dsb += slaterSpin * p * df / rb83
 		}
-		exc[i] += c * e
+		exc[i] += c * rawScale(rhoA[i]+rhoB[i], n) * e
 		va[i] += c * da
 		vb[i] += c * db
 		vsAA[i] += c * dsa

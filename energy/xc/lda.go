@@ -33,13 +33,38 @@ func slaterUnpol(c float64, sc screen, rho, exc, vrho []float64) {
 
 // spinScale returns P = n^(4/3)·h(1+ζσ) for one spin channel σ, with h the
 // thresholded (1+ζσ)^(4/3), and its derivatives with respect to the
-// channel's own density and the other one. opz = 1+ζσ, omz = 1−ζσ.
-func spinScale(n, n13, opz, omz float64) (p, dOwn, dOther float64) {
+// channel's own density and the other one. opz = 1+ζσ, omz = 1−ζσ. When
+// frozen (ζ held at ±(1−zetaThreshold), see exchangeSpin) ζ does not
+// depend on the densities and P depends on n only.
+func spinScale(n, n13, opz, omz float64, frozen bool) (p, dOwn, dOther float64) {
 	h, dh := pow43(opz)
 	p = n * n13 * h
+	if frozen {
+		d := 4.0 / 3.0 * n13 * h
+		return p, d, d
+	}
+	// ∂P/∂ρσ = n^(1/3)[(4/3)h + h'(1−ζσ)] and ∂P/∂ρσ' = n^(1/3)[(4/3)h − h'(1+ζσ)],
+	// which is exactly zero here (h = (1+ζσ)^(4/3) is not thresholded
+	// unless frozen).
 	dOwn = n13 * (4.0/3.0*h + dh*omz)
-	dOther = n13 * (4.0/3.0*h - dh*opz)
-	return p, dOwn, dOther
+	return p, dOwn, 0
+}
+
+// exchangeSpin returns n, 1+ζ, 1−ζ for spin-scaled exchange. As libxc does
+// for exchange, ζ itself is held at ±(1−zetaThreshold) when 1∓ζ falls to
+// the zeta threshold (frozen true): it then no longer depends on the
+// densities.
+func exchangeSpin(ra, rb float64) (n, opz, omz float64, frozen bool) {
+	n, zeta, opz, omz := spinVars(ra, rb)
+	switch {
+	case opz <= zetaThreshold:
+		zeta, frozen = zetaThreshold-1, true
+	case omz <= zetaThreshold:
+		zeta, frozen = 1-zetaThreshold, true
+	default:
+		return n, opz, omz, false
+	}
+	return n, 1 + zeta, 1 + (-zeta), frozen
 }
 
 // slaterPol adds c × Slater exchange for spin-polarized densities.
@@ -49,36 +74,45 @@ func slaterPol(c float64, sc screen, rhoA, rhoB, exc, va, vb []float64) {
 		if !ok {
 			continue
 		}
-		n, _, opz, omz := spinVars(ra, rb)
+		n, opz, omz, frozen := exchangeSpin(ra, rb)
 		n13 := math.Cbrt(n)
 		var e, da, db float64
 		if ra > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, opz, omz)
+			p, dOwn, dOther := spinScale(n, n13, opz, omz, frozen)
 			e += slaterSpin * p
 			da += slaterSpin * dOwn
 			db += slaterSpin * dOther
 		}
 		if rb > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, omz, opz)
+			p, dOwn, dOther := spinScale(n, n13, omz, opz, frozen)
 			e += slaterSpin * p
 			db += slaterSpin * dOwn
 			da += slaterSpin * dOther
 		}
-		exc[i] += c * e
+		exc[i] += c * rawScale(rhoA[i]+rhoB[i], n) * e
 		va[i] += c * da
 		vb[i] += c * db
 	}
 }
 
+// rawScale is nRaw/n: outputs e = nRaw·ε where ε is evaluated at the
+// clamped density n, matching what one gets from libxc's energy per
+// particle times the input density.
+func rawScale(nRaw, n float64) float64 {
+	if nRaw == n {
+		return 1
+	}
+	return nRaw / n
+}
+
 // ---------------------------------------------------------------------------
 // Local correlation: shared chain rule.
 
-// ldaCorrPolOut turns ε(rs, ζ) and its partial derivatives into the energy
-// per volume e = nε and ∂e/∂ρα, ∂e/∂ρβ, using ∂rs/∂n = −rs/(3n),
-// ∂ζ/∂ρα = (1−ζ)/n, ∂ζ/∂ρβ = −(1+ζ)/n.
-func ldaCorrPolOut(n, rs, opz, omz, eps, dRs, dZ float64) (e, va, vb float64) {
+// ldaCorrPot turns ε(rs, ζ) and its partial derivatives into ∂(nε)/∂ρα and
+// ∂(nε)/∂ρβ, using ∂rs/∂n = −rs/(3n), ∂ζ/∂ρα = (1−ζ)/n, ∂ζ/∂ρβ = −(1+ζ)/n.
+func ldaCorrPot(rs, opz, omz, eps, dRs, dZ float64) (va, vb float64) {
 	common := eps - rs/3*dRs
-	return n * eps, common + omz*dZ, common - opz*dZ
+	return common + omz*dZ, common - opz*dZ
 }
 
 // ---------------------------------------------------------------------------
@@ -180,8 +214,8 @@ func pwPol(c float64, sc screen, s *pwSet, rhoA, rhoB, exc, va, vb []float64) {
 		n, zeta, opz, omz := spinVars(ra, rb)
 		rs := rsFactor / math.Cbrt(n)
 		eps, dRs, dZ := s.epsPol(rs, zeta, opz, omz)
-		e, da, db := ldaCorrPolOut(n, rs, opz, omz, eps, dRs, dZ)
-		exc[i] += c * e
+		da, db := ldaCorrPot(rs, opz, omz, eps, dRs, dZ)
+		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
 		va[i] += c * da
 		vb[i] += c * db
 	}
@@ -295,8 +329,8 @@ func vwnPol(c float64, sc screen, s *vwnSet, rhoA, rhoB, exc, va, vb []float64) 
 		n, zeta, opz, omz := spinVars(ra, rb)
 		rs := rsFactor / math.Cbrt(n)
 		eps, dRs, dZ := s.epsPol(rs, zeta, opz, omz)
-		e, da, db := ldaCorrPolOut(n, rs, opz, omz, eps, dRs, dZ)
-		exc[i] += c * e
+		da, db := ldaCorrPot(rs, opz, omz, eps, dRs, dZ)
+		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
 		va[i] += c * da
 		vb[i] += c * db
 	}

@@ -156,11 +156,16 @@ func TestProbeLibxc(t *testing.T) {
 		f.EvalPolarized(p.n, p.ra, p.rb, p.saa, p.sab, p.sbb, exc, va, vb, vaa, vab, vbb)
 		w := map[string]float64{}
 		wp := map[string]string{}
+		nfail := 0
 		for i := 0; i < p.n; i++ {
 			upd := func(k string, a, b float64) {
 				d := math.Abs(a-b) / math.Max(math.Abs(b), 1e-300)
 				if a == b {
 					d = 0
+				}
+				if d > 1e-10 && nfail < 40 {
+					nfail++
+					t.Logf("FAIL %d %s at (%.3g,%.3g | %.3g %.3g %.3g): %.6g vs %.6g", id, k, p.ra[i], p.rb[i], p.saa[i], p.sab[i], p.sbb[i], a, b)
 				}
 				if d > w[k] {
 					w[k] = d

@@ -103,7 +103,7 @@ func lypPol(c float64, sc screen, rhoA, rhoB, sAA, sAB, sBB,
 		}
 		saa, sab, sbb := sc.clampSigmaPol(sAA[i], sAB[i], sBB[i])
 		e, da, db, dsaa, dsab, dsbb := lypPoint(ra, rb, saa, sab, sbb)
-		exc[i] += c * e
+		exc[i] += c * rawScale(rhoA[i]+rhoB[i], ra+rb) * e
 		va[i] += c * da
 		vb[i] += c * db
 		vsAA[i] += c * dsaa

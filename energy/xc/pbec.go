@@ -39,7 +39,7 @@ func pbecPoint(pw *pwSet, n, zeta, opz, omz, sigma float64, polarized bool) (eps
 	g := pbeGamma * phi2 * phi
 	dg := 3 * pbeGamma * phi2 * dphi
 	const bg = pbeBeta / pbeGamma
-	ySigma := pbeTConst / (phi2 * n * n13 * n13) // ∂y/∂σ, y = t²
+	ySigma := pbeTConst / (phi2 * n * n * n13) // ∂y/∂σ, y = t²
 	y := ySigma * sigma
 	ex := math.Exp(-ec / g)
 	em1 := ex - 1
@@ -91,7 +91,7 @@ func pbecPol(c float64, sc screen, pw *pwSet, rhoA, rhoB, sAA, sAB, sBB,
 		n, zeta, opz, omz := spinVars(ra, rb)
 		eps, dn, dz, ds := pbecPoint(pw, n, zeta, opz, omz, saa+2*sab+sbb, true)
 		common := eps + n*dn
-		exc[i] += c * n * eps
+		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
 		va[i] += c * (common + omz*dz)
 		vb[i] += c * (common - opz*dz)
 		vsAA[i] += c * n * ds

@@ -60,7 +60,7 @@ func (s screen) clampSigmaPol(saa, sab, sbb float64) (float64, float64, float64)
 // at the same points and 1−ζ carries the same rounding when |ζ| ≈ 1.
 func spinVars(ra, rb float64) (n, zeta, opz, omz float64) {
 	n = ra + rb
-	zeta = (ra - rb) / n
+	zeta = (ra - rb) * (1 / n)
 	return n, zeta, 1 + zeta, 1 + (-zeta)
 }
 

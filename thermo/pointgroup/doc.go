@@ -15,9 +15,11 @@
 //     partner), and so does any axis of a molecule that has one;
 //   - an axis Cn with n ≥ 3 is, outside the cubic and icosahedral groups, a
 //     principal axis of inertia (it makes two principal moments equal); in
-//     the cubic and icosahedral groups it is the normal of the plane of three
-//     atoms of one orbit (the orbit of an atom off a Cn axis is a regular
-//     n-gon about it), searched when the three moments are nearly equal;
+//     the cubic and icosahedral groups it passes through an atom or is the
+//     normal of the plane of three atoms of one orbit (the orbit of an atom
+//     off a Cn axis is a regular n-gon about it; the triples through the
+//     first atom of each shell suffice), searched when the three moments are
+//     nearly equal;
 //   - a mirror plane either contains all atoms (then its normal is a
 //     principal axis) or has the difference of two interchanged atoms as
 //     its normal.

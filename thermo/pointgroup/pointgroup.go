@@ -144,18 +144,7 @@ func newDetector(atoms []Atom, tol float64) (*detector, vec, error) {
 			}
 		}
 	}
-	var inertia mat
-	for i, p := range d.pos {
-		m := atoms[i].Mass
-		r2 := dot(p, p)
-		for a := 0; a < 3; a++ {
-			inertia[a][a] += m * r2
-			for b := 0; b < 3; b++ {
-				inertia[a][b] -= m * p[a] * p[b]
-			}
-		}
-	}
-	d.moments, d.axes = eigSym3(inertia)
+	d.moments, d.axes = Inertia(atoms)
 	return d, com, nil
 }
 
@@ -271,9 +260,13 @@ func (d *detector) candidates() (axes, normals []vec) {
 	}
 	top := d.moments[2]
 	if top > 0 && (top-d.moments[0])/top < sphericalSpread {
+		// An axis Cn (n ≥ 3) either passes through the first atom of a
+		// shell (same kind, same distance from the center), or that atom's
+		// orbit under Cn is a regular n-gon about the axis: the triples
+		// that contain it suffice.
 		for _, list := range d.byKind {
 			for x, i := range list {
-				if d.radius[i] <= d.tol {
+				if d.radius[i] <= d.tol || !d.firstOfShell(list[:x], i) {
 					continue
 				}
 				for y := x + 1; y < len(list); y++ {
@@ -295,6 +288,17 @@ func (d *detector) candidates() (axes, normals []vec) {
 		}
 	}
 	return axes, normals
+}
+
+// firstOfShell reports whether no atom of earlier lies at the distance of
+// atom i from the center.
+func (d *detector) firstOfShell(earlier []int, i int) bool {
+	for _, j := range earlier {
+		if math.Abs(d.radius[i]-d.radius[j]) <= d.tol {
+			return false
+		}
+	}
+	return true
 }
 
 func (d *detector) detect() (*Result, error) {
@@ -449,4 +453,36 @@ func (d *detector) classify(r *Result) error {
 		r.Symbol, r.Order = fmt.Sprintf("C%d", n), n
 	}
 	return nil
+}
+
+// Inertia returns the principal moments of inertia of atoms about their
+// center of mass in u·bohr², ascending, and the principal axes as unit
+// vectors (axes[k] belongs to moments[k]). Masses and positions are not
+// checked; use [Detect] for user input.
+func Inertia(atoms []Atom) (moments [3]float64, axes [3][3]float64) {
+	var com [3]float64
+	total := 0.0
+	for _, a := range atoms {
+		com = add(com, scale(a.Mass, a.Position))
+		total += a.Mass
+	}
+	if total > 0 {
+		com = scale(1/total, com)
+	}
+	var t mat
+	for _, a := range atoms {
+		p := sub(a.Position, com)
+		r2 := dot(p, p)
+		for x := 0; x < 3; x++ {
+			t[x][x] += a.Mass * r2
+			for y := 0; y < 3; y++ {
+				t[x][y] -= a.Mass * p[x] * p[y]
+			}
+		}
+	}
+	m, v := eigSym3(t)
+	for k := range m {
+		m[k] = math.Max(m[k], 0) // rounding can leave −1e-17 for linear molecules
+	}
+	return m, v
 }

@@ -16,6 +16,10 @@ static int family_of(xc_func_type *p) { return p->info->family; }
 static double dens_thr(xc_func_type *p) { return p->dens_threshold; }
 static double zeta_thr(xc_func_type *p) { return p->zeta_threshold; }
 static double sigma_thr(xc_func_type *p) { return p->sigma_threshold; }
+static int n_aux(xc_func_type *p) { return p->n_func_aux; }
+static xc_func_type *aux(xc_func_type *p, int i) { return p->func_aux[i]; }
+static double mix_coef(xc_func_type *p, int i) { return p->mix_coef[i]; }
+static int number_of(xc_func_type *p) { return p->info->number; }
 */
 import "C"
 
@@ -74,6 +78,28 @@ func (f *Func) IsGGA() bool { return f.gga }
 // Thresholds returns the functional's default screening thresholds.
 func (f *Func) Thresholds() Thresholds {
 	return Thresholds{Dens: float64(C.dens_thr(f.p)), Zeta: float64(C.zeta_thr(f.p)), Sigma: float64(C.sigma_thr(f.p))}
+}
+
+// Component is one term of a libxc mixture: its ID, weight and thresholds.
+type Component struct {
+	ID         int
+	Coef       float64
+	Thresholds Thresholds
+}
+
+// Components lists the terms of a mixed functional (empty for a single one).
+func (f *Func) Components() []Component {
+	var out []Component
+	for i := 0; i < int(C.n_aux(f.p)); i++ {
+		a := C.aux(f.p, C.int(i))
+		out = append(out, Component{
+			ID:   int(C.number_of(a)),
+			Coef: float64(C.mix_coef(f.p, C.int(i))),
+			Thresholds: Thresholds{Dens: float64(C.dens_thr(a)), Zeta: float64(C.zeta_thr(a)),
+				Sigma: float64(C.sigma_thr(a))},
+		})
+	}
+	return out
 }
 
 // ExactExchange returns libxc's fraction of exact exchange.

@@ -12,6 +12,9 @@ func TestProbe(t *testing.T) {
 				t.Fatal(err)
 			}
 			t.Logf("%d pol=%v gga=%v thr=%+v exx=%v", id, pol, f.IsGGA(), f.Thresholds(), f.ExactExchange())
+			for _, c := range f.Components() {
+				t.Logf("   comp %+v", c)
+			}
 			f.Close()
 		}
 	}
