@@ -12,8 +12,8 @@ type RotorType int
 
 // The rotor types.
 const (
-	Atom          RotorType = iota // a single atom: no rotation
-	Linear                         // I_A = 0, I_B = I_C
+	AtomRotor     RotorType = iota // a single atom: no rotation
+	LinearRotor                    // I_A = 0, I_B = I_C
 	SphericalTop                   // I_A = I_B = I_C
 	ProlateTop                     // I_A < I_B = I_C
 	OblateTop                      // I_A = I_B < I_C
@@ -23,9 +23,9 @@ const (
 // String returns the name of the rotor type ("prolate symmetric top").
 func (t RotorType) String() string {
 	switch t {
-	case Atom:
+	case AtomRotor:
 		return "atom"
-	case Linear:
+	case LinearRotor:
 		return "linear"
 	case SphericalTop:
 		return "spherical top"
@@ -77,10 +77,10 @@ func NewRotor(atoms []pointgroup.Atom, pg *pointgroup.Result) Rotor {
 	ia, ib, ic := r.MomentsAmuBohr2[0], r.MomentsAmuBohr2[1], r.MomentsAmuBohr2[2]
 	switch {
 	case len(atoms) == 1:
-		r.Type = Atom
+		r.Type = AtomRotor
 		return r
 	case pg.Linear:
-		r.Type = Linear
+		r.Type = LinearRotor
 		r.MomentsAmuBohr2[0] = 0
 		b := (ib + ic) / 2
 		r.MomentsAmuBohr2[1], r.MomentsAmuBohr2[2] = b, b
@@ -112,7 +112,7 @@ func NewRotor(atoms []pointgroup.Atom, pg *pointgroup.Result) Rotor {
 		hz := units.Planck / (8 * math.Pi * math.Pi * momentKgM2(i))
 		r.ConstantsGHz = append(r.ConstantsGHz, hz/1e9)
 		r.ConstantsCm1 = append(r.ConstantsCm1, hz/(100*units.SpeedOfLight))
-		if r.Type == Linear {
+		if r.Type == LinearRotor {
 			break
 		}
 	}

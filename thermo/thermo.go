@@ -206,12 +206,16 @@ func NewModel(in Input, opt Options) (*Model, error) {
 	switch {
 	case n == 1:
 		want = 0
-	case m.Rotor.Type == Linear:
+	case m.Rotor.Type == LinearRotor:
 		want = 3*n - 5
 	}
 	if len(in.FrequenciesCm1) != want {
-		return nil, fmt.Errorf("%d frequencies for %d atoms (%s): give the %d vibrational wavenumbers (3N−%d), degenerate modes once per component",
-			len(in.FrequenciesCm1), n, m.Rotor.Type, want, 3*n-want)
+		hint := ""
+		if m.Rotor.Type == LinearRotor && len(in.FrequenciesCm1) == want-1 {
+			hint = "; the geometry is linear within the symmetry tolerance"
+		}
+		return nil, fmt.Errorf("%d frequencies for %d atoms (%s): give the %d vibrational wavenumbers (3N−%d), degenerate modes once per component%s",
+			len(in.FrequenciesCm1), n, m.Rotor.Type, want, 3*n-want, hint)
 	}
 	for _, nu := range in.FrequenciesCm1 {
 		switch {
@@ -351,8 +355,8 @@ func (m *Model) Properties(c Conditions) (Properties, error) {
 		return units.Planck * units.Planck / (8 * math.Pi * math.Pi * momentKgM2(iAmuBohr2) * units.Boltzmann)
 	}
 	switch m.Rotor.Type {
-	case Atom:
-	case Linear:
+	case AtomRotor:
+	case LinearRotor:
 		q := t / (sigma * theta(m.Rotor.MomentsAmuBohr2[2]))
 		p.Rotation = Component{EnergyHartree: r * t / jPerMolPerHartree, EntropyJPerMolK: r * (math.Log(q) + 1), CvJPerMolK: r}
 	default:

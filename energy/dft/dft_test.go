@@ -126,6 +126,8 @@ func TestGridConvergenceAndRotation(t *testing.T) {
 	def := ks(t, m, "b3lyp", "6-31g*", grid.DefaultLevel, false).EnergyHartree
 	finer := ks(t, m, "b3lyp", "6-31g*", grid.DefaultLevel+1, false).EnergyHartree
 	rot := ks(t, build(t, rotated(water), 0, 0), "b3lyp", "6-31g*", grid.DefaultLevel, false).EnergyHartree
+	t.Logf("B3LYP/6-31G* water: level %d %.10f, level %d %.10f (diff %.2e), rotated %.10f (diff %.2e)",
+		grid.DefaultLevel, def, grid.DefaultLevel+1, finer, def-finer, rot, def-rot)
 	if d := math.Abs(def - finer); d > 1e-6 {
 		t.Errorf("default grid %.9f vs finer %.9f: %.2e", def, finer, d)
 	}

@@ -45,10 +45,10 @@ type LevelSpec struct {
 
 // levels is the table of accuracy levels.
 var levels = [MaxLevel]LevelSpec{
-	{Level: 1, Radial: [5]int{30, 40, 45, 55, 60}, Angular: [3]int{26, 50, 146}},
+	{Level: 1, Radial: [5]int{30, 40, 45, 55, 60}, Angular: [3]int{26, 50, 194}},
 	{Level: 2, Radial: [5]int{40, 55, 60, 70, 75}, Angular: [3]int{38, 86, 302}},
-	{Level: 3, Radial: [5]int{55, 70, 80, 90, 95}, Angular: [3]int{50, 110, 434}},
-	{Level: 4, Radial: [5]int{70, 90, 100, 110, 120}, Angular: [3]int{86, 194, 590}},
+	{Level: 3, Radial: [5]int{55, 70, 80, 90, 95}, Angular: [3]int{50, 110, 590}},
+	{Level: 4, Radial: [5]int{70, 90, 100, 110, 120}, Angular: [3]int{86, 194, 770}},
 	{Level: 5, Radial: [5]int{90, 115, 125, 140, 150}, Angular: [3]int{110, 302, 974}},
 }
 
@@ -93,7 +93,7 @@ func New(z []int, positions [][3]float64, level int, frame Frame, threads int) (
 	if err != nil {
 		return nil, err
 	}
-	return build(z, positions, spec, frame, threads, schemeBecke)
+	return build(z, positions, spec, frame, threads)
 }
 
 // atomPoints is the raw grid of one atom before the cell function.
@@ -101,7 +101,7 @@ type atomPoints struct {
 	x, y, z, w []float64
 }
 
-func build(z []int, positions [][3]float64, spec LevelSpec, frame Frame, threads, scheme int) (*Grid, error) {
+func build(z []int, positions [][3]float64, spec LevelSpec, frame Frame, threads int) (*Grid, error) {
 	if len(z) != len(positions) {
 		return nil, fmt.Errorf("grid: %d atomic numbers but %d positions", len(z), len(positions))
 	}
@@ -149,7 +149,7 @@ func build(z []int, positions [][3]float64, spec LevelSpec, frame Frame, threads
 	}
 
 	// Cell functions, in fixed chunks of points, in parallel.
-	part := newPartition(z, positions, scheme)
+	part := newPartition(z, positions)
 	cellW := make([][]float64, nat)
 	type chunk struct{ atom, lo, hi int }
 	var chunks []chunk

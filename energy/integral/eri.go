@@ -24,6 +24,7 @@ package integral
 import (
 	"math"
 	"runtime"
+	"sort"
 	"sync"
 )
 
@@ -46,6 +47,10 @@ type eriPrim struct {
 	p    [3]float64 // P = (αA+βB)/ζ
 	pa   [3]float64 // P − A
 	k    float64    // c_α c_β exp(−αβ/ζ·AB²)/ζ · √2 π^{5/4}
+	// bnd = Q·(2/π)^{1/4}ζ^{1/4} with Q the charge bound of
+	// eriPrimThreshold: bnd_p·bnd_q bounds the primitive quartet's
+	// contribution to any integral (see newERIPair).
+	bnd float64
 }
 
 // eriPair is the prepared data of a shell pair, oriented so that la ≥ lb.
@@ -53,8 +58,14 @@ type eriPair struct {
 	a, b   int // shell indices; shell a has the higher angular momentum
 	la, lb int
 	ab     [3]float64 // A − B
-	prims  []eriPrim
+	prims  []eriPrim // sorted by decreasing bnd
+	maxBnd float64   // prims[0].bnd, 0 without primitives
 }
+
+// eriQuartetThreshold skips a primitive quartet when the product of the
+// pair bounds bnd is below it (see newERIPair); the pair lists are sorted so
+// that the loops stop at the first such quartet.
+const eriQuartetThreshold = 1e-15
 
 // key orders pairs: the pair with the larger key goes into the bra.
 func (p *eriPair) key() int { return (p.la+p.lb)*16 + p.la }
@@ -173,8 +184,18 @@ func newERIPair(b *Basis, i, j int) eriPair {
 				continue
 			}
 			pr.k = c * kab / z * pre
+			// The Coulomb interaction of two charge distributions bounded
+			// by Q_p and Q_q with exponents ζ and η is at most
+			// Q_p Q_q·2√(ρ/π) (the potential of the tighter Gaussian at its
+			// centre), and 2√(ρ/π) ≤ (2/π)^{1/2}(ζη)^{1/4} since
+			// ρ = ζη/(ζ+η) ≤ √(ζη)/2; so bnd_p·bnd_q bounds the quartet.
+			pr.bnd = bound * math.Pow(2/math.Pi, 0.25) * math.Pow(z, 0.25)
 			p.prims = append(p.prims, pr)
 		}
+	}
+	sort.SliceStable(p.prims, func(x, y int) bool { return p.prims[x].bnd > p.prims[y].bnd })
+	if len(p.prims) > 0 {
+		p.maxBnd = p.prims[0].bnd
 	}
 	return p
 }

@@ -77,8 +77,14 @@ func (e *ERIEngine) generic(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
+		if p.bnd*ket.maxBnd < eriQuartetThreshold {
+			break
+		}
 		for qi := range ket.prims {
 			q := &ket.prims[qi]
+			if p.bnd*q.bnd < eriQuartetThreshold {
+				break
+			}
 			zn := p.zeta + q.zeta
 			ozn := 1 / zn
 			rho := p.zeta * q.zeta * ozn

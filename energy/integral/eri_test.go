@@ -535,3 +535,22 @@ func TestERITensor(t *testing.T) {
 		}
 	}
 }
+
+// TestERIBoysInline checks the Taylor table and the asymptotic branch of
+// the generated code against Boys over the whole range of t.
+func TestERIBoysInline(t *testing.T) {
+	var got, want [eriBoysMaxM + 1]float64
+	for i := 0; i <= 20000; i++ {
+		x := float64(i) * 0.00731
+		if i > 15000 {
+			x = eriBoysTMax + float64(i-15000)*0.37
+		}
+		eriBoysInline(eriBoysMaxM, x, got[:])
+		Boys(eriBoysMaxM, x, want[:])
+		for m := range want {
+			if math.Abs(got[m]-want[m]) > 4e-15*want[m] {
+				t.Fatalf("F_%d(%g) = %.17g, Boys %.17g", m, x, got[m], want[m])
+			}
+		}
+	}
+}

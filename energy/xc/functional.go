@@ -2,7 +2,6 @@ package xc
 
 import (
 	"fmt"
-	"sort"
 	"strings"
 )
 
@@ -30,7 +29,9 @@ type term struct {
 
 func (k kernel) isGGA() bool { return k >= kB88 }
 
-func slaterTerm(c float64) term { return term{kind: kSlater, coef: c, sc: newScreen(densThresholdDefault)} }
+func slaterTerm(c float64) term {
+	return term{kind: kSlater, coef: c, sc: newScreen(densThresholdDefault)}
+}
 func vwnTerm(c float64, s vwnSet) term {
 	return term{kind: kVWN, coef: c, sc: newScreen(densThresholdDefault), vwn: s}
 }
@@ -70,50 +71,47 @@ func newFunctional(name string, exx float64, terms ...term) *Functional {
 // B88 here is the whole functional (Slater plus gradient correction), so
 // the local exchange weight is 0.08 + 0.72 = 0.80 = 1 − a0.
 func b3lypTerms(vwn vwnSet) []term {
-	const a0, ax, ac = 0.20, 0.72, 0.81
-	return []term{slaterTerm(1.0 - a0 - ax), b88Term(ax), vwnTerm(1.0-ac, vwn), lypTerm(ac)}
+	const ax, ac = 0.72, 0.81
+	return []term{slaterTerm(1.0 - b3lypA0 - ax), b88Term(ax), vwnTerm(1.0-ac, vwn), lypTerm(ac)}
 }
 
-// methods maps lower-case method names to constructors.
-var methods = map[string]func() *Functional{
-	"hf":  func() *Functional { return newFunctional("hf", 1) },
-	"lda": func() *Functional { return newFunctional("lda", 0, slaterTerm(1), vwnTerm(1, vwn5())) },
-	"blyp": func() *Functional {
-		return newFunctional("blyp", 0, b88Term(1), lypTerm(1))
-	},
-	"pbe": func() *Functional { return newFunctional("pbe", 0, pbexTerm(1), pbecTerm(1)) },
-	"b3lyp": func() *Functional {
-		return newFunctional("b3lyp", 0.20, b3lypTerms(vwnRPA())...)
-	},
-	"b3lyp5": func() *Functional {
-		return newFunctional("b3lyp5", 0.20, b3lypTerms(vwn5())...)
-	},
-	// PBE0: C. Adamo, V. Barone, J. Chem. Phys. 110, 6158 (1999);
-	// libxc HYB_GGA_XC_PBEH (406): 0.25 exact + 0.75 PBE X + PBE C.
-	"pbe0": func() *Functional {
-		return newFunctional("pbe0", 0.25, pbexTerm(1-0.25), pbecTerm(1))
-	},
-}
+// b3lypA0 is the exact-exchange fraction a0 of B3LYP.
+const b3lypA0 = 0.20
 
 // Names returns the method names Lookup accepts, sorted.
-func Names() []string {
-	names := make([]string, 0, len(methods))
-	for k := range methods {
-		names = append(names, k)
-	}
-	sort.Strings(names)
-	return names
-}
+func Names() []string { return []string{"b3lyp", "b3lyp5", "blyp", "hf", "lda", "pbe", "pbe0"} }
 
-// Lookup returns the functional of a method name (case-insensitive): hf,
-// lda, blyp, pbe, b3lyp, b3lyp5, pbe0.
+// Lookup returns the functional of a method name (case-insensitive):
+//
+//	hf      no density functional, exact exchange 1
+//	lda     Slater exchange + VWN5 correlation
+//	blyp    Becke 88 exchange + LYP correlation
+//	pbe     PBE exchange + PBE correlation
+//	b3lyp   0.08 Slater + 0.72 B88 + 0.19 VWN-RPA + 0.81 LYP, exact exchange 0.20 (libxc 402)
+//	b3lyp5  as b3lyp with VWN5 (libxc 475)
+//	pbe0    0.75 PBE exchange + PBE correlation, exact exchange 0.25 (libxc 406)
 func Lookup(method string) (*Functional, error) {
 	key := strings.ToLower(strings.TrimSpace(method))
-	mk, ok := methods[key]
-	if !ok {
-		return nil, fmt.Errorf("xc: unknown method %q (known: %s)", method, strings.Join(Names(), ", "))
+	switch key {
+	case "hf":
+		return newFunctional(key, 1), nil
+	case "lda":
+		return newFunctional(key, 0, slaterTerm(1), vwnTerm(1, vwn5())), nil
+	case "blyp":
+		return newFunctional(key, 0, b88Term(1), lypTerm(1)), nil
+	case "pbe":
+		return newFunctional(key, 0, pbexTerm(1), pbecTerm(1)), nil
+	case "b3lyp":
+		return newFunctional(key, b3lypA0, b3lypTerms(vwnRPA())...), nil
+	case "b3lyp5":
+		return newFunctional(key, b3lypA0, b3lypTerms(vwn5())...), nil
+	case "pbe0":
+		// C. Adamo, V. Barone, J. Chem. Phys. 110, 6158 (1999);
+		// M. Ernzerhof, G. E. Scuseria, J. Chem. Phys. 110, 5029 (1999).
+		const a0 = 0.25
+		return newFunctional(key, a0, pbexTerm(1-a0), pbecTerm(1)), nil
 	}
-	return mk(), nil
+	return nil, fmt.Errorf("xc: unknown method %q (known: %s)", method, strings.Join(Names(), ", "))
 }
 
 // Name returns the canonical (lower-case) method name.

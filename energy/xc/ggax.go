@@ -93,11 +93,12 @@ func ggaXPol(c float64, sc screen, kind ggaXKind, rhoA, rhoB, sAA, sAB, sBB,
 			continue
 		}
 		saa, _, sbb := sc.clampSigmaPol(sAA[i], sAB[i], sBB[i])
-		n, opz, omz, frozen := exchangeSpin(ra, rb)
+		sp, frozen := ggaExchangeSpin(ra, rb)
+		n := sp.n
 		n13 := math.Cbrt(n)
 		var e, da, db, dsa, dsb float64
 		if ra > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, opz, omz, frozen)
+			p, dOwn, dOther := spinScale(n, n13, sp.opz, sp.omz, sp.loA, frozen)
 			ra13 := math.Cbrt(ra)
 			ra83 := ra13 * ra13 * ra * ra
 			x2 := saa / ra83
@@ -108,7 +109,7 @@ func ggaXPol(c float64, sc screen, kind ggaXKind, rhoA, rhoB, sAA, sAB, sBB,
 			dsa += slaterSpin * p * df / ra83
 		}
 		if rb > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, omz, opz, frozen)
+			p, dOwn, dOther := spinScale(n, n13, sp.omz, sp.opz, sp.loB, frozen)
 			rb13 := math.Cbrt(rb)
 			rb83 := rb13 * rb13 * rb * rb
 			x2 := sbb / rb83

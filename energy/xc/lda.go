@@ -31,40 +31,57 @@ func slaterUnpol(c float64, sc screen, rho, exc, vrho []float64) {
 	}
 }
 
-// spinScale returns P = n^(4/3)·h(1+ζσ) for one spin channel σ, with h the
-// thresholded (1+ζσ)^(4/3), and its derivatives with respect to the
-// channel's own density and the other one. opz = 1+ζσ, omz = 1−ζσ. When
-// frozen (ζ held at ±(1−zetaThreshold), see exchangeSpin) ζ does not
-// depend on the densities and P depends on n only.
-func spinScale(n, n13, opz, omz float64, frozen bool) (p, dOwn, dOther float64) {
-	h, dh := pow43(opz)
+// spinScale returns P = n^(4/3)·h(1+ζσ) for one spin channel σ of GGA
+// exchange, with h the thresholded (1+ζσ)^(4/3), and its derivatives with
+// respect to the channel's own density and the other one. opz = 1+ζσ,
+// omz = 1−ζσ, lo reports 1+ζσ at the zeta threshold. When frozen (ζ held
+// at ±(1−zetaThreshold), see ggaExchangeSpin) ζ does not depend on the
+// densities and P depends on n only.
+func spinScale(n, n13, opz, omz float64, lo, frozen bool) (p, dOwn, dOther float64) {
+	h, dh := pow43(opz, lo)
 	p = n * n13 * h
-	if frozen {
+	if frozen || lo {
 		d := 4.0 / 3.0 * n13 * h
 		return p, d, d
 	}
-	// ∂P/∂ρσ = n^(1/3)[(4/3)h + h'(1−ζσ)] and ∂P/∂ρσ' = n^(1/3)[(4/3)h − h'(1+ζσ)],
-	// which is exactly zero here (h = (1+ζσ)^(4/3) is not thresholded
-	// unless frozen).
-	dOwn = n13 * (4.0/3.0*h + dh*omz)
-	return p, dOwn, 0
+	// ∂P/∂ρσ = n^(1/3)[(4/3)h + h'(1−ζσ)] and ∂P/∂ρσ' = n^(1/3)[(4/3)h − h'(1+ζσ)];
+	// the latter is exactly zero unless h is held at the zeta threshold.
+	return p, n13 * (4.0/3.0*h + dh*omz), 0
 }
 
-// exchangeSpin returns n, 1+ζ, 1−ζ for spin-scaled exchange. As libxc does
-// for exchange, ζ itself is held at ±(1−zetaThreshold) when 1∓ζ falls to
-// the zeta threshold (frozen true): it then no longer depends on the
+// ggaExchangeSpin returns n, 1+ζ, 1−ζ and the threshold flags for
+// spin-scaled GGA exchange. As libxc 5.2 does in its GGA exchange (not in
+// Slater exchange), ζ itself is held at ∓(1−zetaThreshold) when 1±ζ is at
+// the zeta threshold (frozen true), so that it no longer depends on the
 // densities.
-func exchangeSpin(ra, rb float64) (n, opz, omz float64, frozen bool) {
-	n, zeta, opz, omz := spinVars(ra, rb)
+func ggaExchangeSpin(ra, rb float64) (sp spin, frozen bool) {
+	sp = spinVars(ra, rb)
 	switch {
-	case opz <= zetaThreshold:
-		zeta, frozen = zetaThreshold-1, true
-	case omz <= zetaThreshold:
-		zeta, frozen = 1-zetaThreshold, true
-	default:
-		return n, opz, omz, false
+	case sp.loA:
+		sp.opz, sp.omz = zetaThreshold, 1+(1-zetaThreshold)
+		return sp, true
+	case sp.loB:
+		sp.opz, sp.omz = 1+(1-zetaThreshold), zetaThreshold
+		return sp, true
 	}
-	return n, 1 + zeta, 1 + (-zeta), frozen
+	return sp, false
+}
+
+// slaterChannel returns one spin channel's Slater exchange energy density
+// and its derivatives with respect to the own and other spin density. In
+// libxc's Slater exchange the channel depends on ρσ alone,
+// −(3/4)(6/π)^(1/3)ρσ^(4/3), except below the zeta threshold where
+// (1+ζσ)^(4/3) is held at zetaThreshold^(4/3): then n^(4/3)·zetaThr43.
+func slaterChannel(rho, n float64, lo bool) (e, dOwn, dOther float64) {
+	if lo {
+		n13 := math.Cbrt(n)
+		e = slaterSpin * n * n13 * zetaThr43
+		d := 4.0 / 3.0 * slaterSpin * n13 * zetaThr43
+		return e, d, d
+	}
+	r2 := 2 * rho
+	c := math.Cbrt(r2)
+	return slaterSpin * r2 * c, 8.0 / 3.0 * slaterSpin * c, 0
 }
 
 // slaterPol adds c × Slater exchange for spin-polarized densities.
@@ -74,22 +91,21 @@ func slaterPol(c float64, sc screen, rhoA, rhoB, exc, va, vb []float64) {
 		if !ok {
 			continue
 		}
-		n, opz, omz, frozen := exchangeSpin(ra, rb)
-		n13 := math.Cbrt(n)
+		sp := spinVars(ra, rb)
 		var e, da, db float64
 		if ra > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, opz, omz, frozen)
-			e += slaterSpin * p
-			da += slaterSpin * dOwn
-			db += slaterSpin * dOther
+			ea, dOwn, dOther := slaterChannel(ra, sp.n, sp.loA)
+			e += ea
+			da += dOwn
+			db += dOther
 		}
 		if rb > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, omz, opz, frozen)
-			e += slaterSpin * p
-			db += slaterSpin * dOwn
-			da += slaterSpin * dOther
+			eb, dOwn, dOther := slaterChannel(rb, sp.n, sp.loB)
+			e += eb
+			db += dOwn
+			da += dOther
 		}
-		exc[i] += c * rawScale(rhoA[i]+rhoB[i], n) * e
+		exc[i] += c * rawScale(rhoA[i]+rhoB[i], sp.n) * e
 		va[i] += c * da
 		vb[i] += c * db
 	}
@@ -142,7 +158,7 @@ func (g *pwG) eval(rs, srs float64) (val, d float64) {
 }
 
 // pwSet is a full PW92 parametrization: paramagnetic ε_c(rs,0),
-// ferromagnetic ε_c(rs,1), and −α_c(rs), plus f''(0).
+// ferromagnetic ε_c(rs,1), and −α_c(rs), plus f”(0).
 type pwSet struct {
 	para, ferro, malpha pwG
 	fz20                float64
@@ -173,14 +189,15 @@ func (s *pwSet) epsUnpol(rs float64) (eps, dRs float64) {
 	return s.para.eval(rs, math.Sqrt(rs))
 }
 
-// epsPol returns ε_c(rs, ζ) = ε_P + ζ⁴f(ζ)[ε_F − ε_P + (−α_c)/f''(0)]
-// − f(ζ)(−α_c)/f''(0) (PW92 eq. (8)) and its partial derivatives.
-func (s *pwSet) epsPol(rs, zeta, opz, omz float64) (eps, dRs, dZ float64) {
+// epsPol returns ε_c(rs, ζ) = ε_P + ζ⁴f(ζ)[ε_F − ε_P + (−α_c)/f”(0)]
+// − f(ζ)(−α_c)/f”(0) (PW92 eq. (8)) and its partial derivatives.
+func (s *pwSet) epsPol(rs float64, sp *spin) (eps, dRs, dZ float64) {
+	zeta := sp.zeta
 	srs := math.Sqrt(rs)
 	p, dp := s.para.eval(rs, srs)
 	f, dfz := s.ferro.eval(rs, srs)
 	a, da := s.malpha.eval(rs, srs)
-	fz, dfzz := fZeta(opz, omz)
+	fz, dfzz := fZeta(sp)
 	z3 := zeta * zeta * zeta
 	z4 := z3 * zeta
 	bracket := f - p + a/s.fz20
@@ -211,10 +228,10 @@ func pwPol(c float64, sc screen, s *pwSet, rhoA, rhoB, exc, va, vb []float64) {
 		if !ok {
 			continue
 		}
-		n, zeta, opz, omz := spinVars(ra, rb)
-		rs := rsFactor / math.Cbrt(n)
-		eps, dRs, dZ := s.epsPol(rs, zeta, opz, omz)
-		da, db := ldaCorrPot(rs, opz, omz, eps, dRs, dZ)
+		sp := spinVars(ra, rb)
+		rs := rsFactor / math.Cbrt(sp.n)
+		eps, dRs, dZ := s.epsPol(rs, &sp)
+		da, db := ldaCorrPot(rs, sp.opz, sp.omz, eps, dRs, dZ)
 		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
 		va[i] += c * da
 		vb[i] += c * db
@@ -266,7 +283,7 @@ type vwnSet struct {
 	stiffness          bool
 }
 
-// vwnFpp is f''(0) = 4/(9(2^(1/3) − 1)).
+// vwnFpp is f”(0) = 4/(9(2^(1/3) − 1)).
 const vwnFpp = 1.709920934161365617563962776244682938205
 
 // vwn5 returns the Ceperley–Alder fits of VWN (their "V"), libxc ID 7.
@@ -289,11 +306,12 @@ func vwnRPA() vwnSet {
 }
 
 // epsPol returns ε_c(rs, ζ) and its partial derivatives.
-func (s *vwnSet) epsPol(rs, zeta, opz, omz float64) (eps, dRs, dZ float64) {
+func (s *vwnSet) epsPol(rs float64, sp *spin) (eps, dRs, dZ float64) {
+	zeta := sp.zeta
 	x := math.Sqrt(rs)
 	p, dp := s.para.eval(rs, x)
 	f, df := s.ferro.eval(rs, x)
-	fz, dfz := fZeta(opz, omz)
+	fz, dfz := fZeta(sp)
 	if !s.stiffness {
 		return p + fz*(f-p), dp + fz*(df-dp), dfz * (f - p)
 	}
@@ -326,10 +344,10 @@ func vwnPol(c float64, sc screen, s *vwnSet, rhoA, rhoB, exc, va, vb []float64) 
 		if !ok {
 			continue
 		}
-		n, zeta, opz, omz := spinVars(ra, rb)
-		rs := rsFactor / math.Cbrt(n)
-		eps, dRs, dZ := s.epsPol(rs, zeta, opz, omz)
-		da, db := ldaCorrPot(rs, opz, omz, eps, dRs, dZ)
+		sp := spinVars(ra, rb)
+		rs := rsFactor / math.Cbrt(sp.n)
+		eps, dRs, dZ := s.epsPol(rs, &sp)
+		da, db := ldaCorrPot(rs, sp.opz, sp.omz, eps, dRs, dZ)
 		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
 		va[i] += c * da
 		vb[i] += c * db

@@ -21,14 +21,15 @@ const (
 // pbecPoint returns the PBE correlation energy per particle and its partial
 // derivatives with respect to n, ζ and σ = |∇ρ|², given n, ζ, 1±ζ and σ.
 // polarized false means ζ = 0 and skips the spin terms.
-func pbecPoint(pw *pwSet, n, zeta, opz, omz, sigma float64, polarized bool) (eps, dn, dz, ds float64) {
+func pbecPoint(pw *pwSet, sp *spin, sigma float64, polarized bool) (eps, dn, dz, ds float64) {
+	n := sp.n
 	n13 := math.Cbrt(n)
 	rs := rsFactor / n13
 	var ec, ecRs, ecZ, phi, dphi float64
 	if polarized {
-		ec, ecRs, ecZ = pw.epsPol(rs, zeta, opz, omz)
-		ha, dha := pow23(opz)
-		hb, dhb := pow23(omz)
+		ec, ecRs, ecZ = pw.epsPol(rs, sp)
+		ha, dha := pow23(sp.opz, corrLo(sp.opz))
+		hb, dhb := pow23(sp.omz, corrLo(sp.omz))
 		phi = (ha + hb) / 2
 		dphi = (dha - dhb) / 2
 	} else {
@@ -72,7 +73,8 @@ func pbecUnpol(c float64, sc screen, pw *pwSet, rho, sigma, exc, vrho, vsigma []
 			continue
 		}
 		s := max(sc.sigma2, sigma[i])
-		eps, dn, _, ds := pbecPoint(pw, r, 0, 1, 1, s, false)
+		sp := spin{n: r, opz: 1, omz: 1}
+		eps, dn, _, ds := pbecPoint(pw, &sp, s, false)
 		exc[i] += c * r * eps
 		vrho[i] += c * (eps + r*dn)
 		vsigma[i] += c * r * ds
@@ -88,8 +90,9 @@ func pbecPol(c float64, sc screen, pw *pwSet, rhoA, rhoB, sAA, sAB, sBB,
 			continue
 		}
 		saa, sab, sbb := sc.clampSigmaPol(sAA[i], sAB[i], sBB[i])
-		n, zeta, opz, omz := spinVars(ra, rb)
-		eps, dn, dz, ds := pbecPoint(pw, n, zeta, opz, omz, saa+2*sab+sbb, true)
+		sp := spinVars(ra, rb)
+		n, opz, omz := sp.n, sp.opz, sp.omz
+		eps, dn, dz, ds := pbecPoint(pw, &sp, saa+2*sab+sbb, true)
 		common := eps + n*dn
 		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
 		va[i] += c * (common + omz*dz)

@@ -55,19 +55,36 @@ func (s screen) clampSigmaPol(saa, sab, sbb float64) (float64, float64, float64)
 	return saa, sab, sbb
 }
 
-// spinVars returns n = ρα+ρβ, ζ and 1±ζ computed in the same order of
-// floating-point operations as libxc, so that the zeta threshold switches
-// at the same points and 1−ζ carries the same rounding when |ζ| ≈ 1.
-func spinVars(ra, rb float64) (n, zeta, opz, omz float64) {
-	n = ra + rb
-	zeta = (ra - rb) * (1 / n)
-	return n, zeta, 1 + zeta, 1 + (-zeta)
+// spin holds the spin variables of one point as libxc forms them.
+type spin struct {
+	n, zeta  float64
+	opz, omz float64 // 1+ζ and 1−ζ
+	// loA, loB report 1±ζ at or below the zeta threshold as libxc's
+	// exchange functionals test it: 2ρα/n ≤ zetaThreshold (resp. ρβ),
+	// without the cancellation in 1±ζ. Its correlation functionals test
+	// the computed 1±ζ instead (corrLo).
+	loA, loB bool
 }
 
-// pow43 returns h = (1+z)^(4/3) given opz = 1+z, frozen at
-// zetaThreshold^(4/3) below the zeta threshold, and dh/dopz.
-func pow43(opz float64) (h, dh float64) {
-	if opz <= zetaThreshold {
+// spinVars returns the spin variables of (ρα, ρβ). ζ and 1±ζ are computed
+// in the same order of floating-point operations as libxc, so that 1∓ζ
+// carries the same rounding when |ζ| ≈ 1.
+func spinVars(ra, rb float64) spin {
+	n := ra + rb
+	inv := 1 / n
+	zeta := (ra - rb) * inv
+	return spin{n: n, zeta: zeta, opz: 1 + zeta, omz: 1 + (-zeta),
+		loA: 2*ra*inv <= zetaThreshold, loB: 2*rb*inv <= zetaThreshold}
+}
+
+// corrLo is the zeta-threshold test of libxc's correlation functionals:
+// the computed 1±ζ at or below zetaThreshold.
+func corrLo(opz float64) bool { return opz <= zetaThreshold }
+
+// pow43 returns h = (1+z)^(4/3) given opz = 1+z, held at
+// zetaThreshold^(4/3) when lo (1+z at the zeta threshold), and dh/dopz.
+func pow43(opz float64, lo bool) (h, dh float64) {
+	if lo {
 		return zetaThr43, 0
 	}
 	c := math.Cbrt(opz)
@@ -75,8 +92,8 @@ func pow43(opz float64) (h, dh float64) {
 }
 
 // pow23 is pow43 for the exponent 2/3.
-func pow23(opz float64) (h, dh float64) {
-	if opz <= zetaThreshold {
+func pow23(opz float64, lo bool) (h, dh float64) {
+	if lo {
 		return zetaThr23, 0
 	}
 	c := math.Cbrt(opz)
@@ -93,9 +110,9 @@ const (
 // fZeta is the spin-interpolation function
 // f(ζ) = [(1+ζ)^(4/3) + (1−ζ)^(4/3) − 2]/(2^(4/3) − 2)
 // with thresholded powers, and df/dζ.
-func fZeta(opz, omz float64) (f, df float64) {
-	a, da := pow43(opz)
-	b, db := pow43(omz)
+func fZeta(s *spin) (f, df float64) {
+	a, da := pow43(s.opz, corrLo(s.opz))
+	b, db := pow43(s.omz, corrLo(s.omz))
 	return (a + b - 2) / fZetaDen, (da - db) / fZetaDen
 }
 

@@ -215,7 +215,8 @@ func (d *detector) axisOrder(u vec) int {
 		p := d.pos[j]
 		h := dot(p, u)
 		rho := norm(sub(p, scale(h, u)))
-		if math.Abs(h-h0) < d.tol && math.Abs(rho-rho0) < d.tol {
+		// Each of the two atoms may be off by up to the tolerance.
+		if math.Abs(h-h0) < 2*d.tol && math.Abs(rho-rho0) < 2*d.tol {
 			m++
 		}
 	}
@@ -246,7 +247,7 @@ func (d *detector) candidates() (axes, normals []vec) {
 	for _, list := range d.byKind {
 		for x, i := range list {
 			for _, j := range list[x+1:] {
-				if math.Abs(d.radius[i]-d.radius[j]) > d.tol {
+				if math.Abs(d.radius[i]-d.radius[j]) > 2*d.tol {
 					continue
 				}
 				if u, ok := unit(add(d.pos[i], d.pos[j]), tiny); ok {
@@ -271,11 +272,11 @@ func (d *detector) candidates() (axes, normals []vec) {
 				}
 				for y := x + 1; y < len(list); y++ {
 					j := list[y]
-					if math.Abs(d.radius[i]-d.radius[j]) > d.tol {
+					if math.Abs(d.radius[i]-d.radius[j]) > 2*d.tol {
 						continue
 					}
 					for _, k := range list[y+1:] {
-						if math.Abs(d.radius[i]-d.radius[k]) > d.tol {
+						if math.Abs(d.radius[i]-d.radius[k]) > 2*d.tol {
 							continue
 						}
 						n := cross(sub(d.pos[j], d.pos[i]), sub(d.pos[k], d.pos[i]))
@@ -294,7 +295,7 @@ func (d *detector) candidates() (axes, normals []vec) {
 // atom i from the center.
 func (d *detector) firstOfShell(earlier []int, i int) bool {
 	for _, j := range earlier {
-		if math.Abs(d.radius[i]-d.radius[j]) <= d.tol {
+		if math.Abs(d.radius[i]-d.radius[j]) <= 2*d.tol {
 			return false
 		}
 	}

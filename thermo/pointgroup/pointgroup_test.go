@@ -408,3 +408,21 @@ func TestEigSym3(t *testing.T) {
 		t.Fatalf("trace %v", tr)
 	}
 }
+
+func BenchmarkDetectC60(b *testing.B) {
+	atoms := toAtoms(c60())
+	for b.Loop() {
+		if _, err := Detect(atoms, 0); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkSymmetrizeC60(b *testing.B) {
+	atoms := toAtoms(c60())
+	for b.Loop() {
+		if _, _, err := Symmetrize(atoms, 0); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -3,17 +3,14 @@
 package libintref
 
 /*
-#cgo CXXFLAGS: -std=c++17 -O2 -I/usr/include/eigen3 -Wno-deprecated-declarations -Wno-ignored-attributes
+#cgo CXXFLAGS: -std=c++17 -O2 -I/usr/include/eigen3 -Wno-deprecated-declarations -Wno-ignored-attributes -Wno-stringop-overread
 #cgo LDFLAGS: -lint2 -lstdc++ -lm
 #include <stdlib.h>
 #include "shim.h"
 */
 import "C"
 
-import (
-	"fmt"
-	"unsafe"
-)
+import "fmt"
 
 // Shell is one contracted Gaussian shell in poise's terms.
 type Shell struct {
@@ -233,5 +230,3 @@ func Boys(mmax int, t float64, out []float64) error {
 	}
 	return nil
 }
-
-var _ = unsafe.Pointer(nil)

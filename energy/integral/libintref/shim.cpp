@@ -146,6 +146,21 @@ extern "C" int lr_compute(int op, int deriv, int nshell, const int *ls,
     const int want = (op == LR_COULOMB) ? 4 : 2;
     if (nshell != want)
       throw std::invalid_argument("wrong number of shells");
+    // libint2 aborts (assert) rather than throwing when asked for
+    // derivatives it was not built for, so refuse them here.
+    if (deriv < 0 || deriv > 1)
+      throw std::invalid_argument("derivative order must be 0 or 1");
+#if !defined(INCLUDE_ONEBODY) || INCLUDE_ONEBODY < 1
+    if (deriv > 0 && op != LR_COULOMB)
+      throw std::invalid_argument(
+          "this libint2 build has no one-electron derivative integrals "
+          "(INCLUDE_ONEBODY < 1)");
+#endif
+#if !defined(INCLUDE_ERI) || INCLUDE_ERI < 1
+    if (deriv > 0 && op == LR_COULOMB)
+      throw std::invalid_argument(
+          "this libint2 build has no ERI derivative integrals");
+#endif
     size_t maxnprim = 0;
     int maxl = 0;
     for (auto &s : shells) {

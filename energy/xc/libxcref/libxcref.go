@@ -1,10 +1,5 @@
 //go:build libxc
 
-// Package libxcref evaluates libxc exchange–correlation functionals by their
-// libxc ID on flat arrays. It exists only as a reference for the tests of
-// package poise/energy/xc and is built only with the "libxc" build tag
-// (cgo, Debian libxc-dev 5.2). Reference: S. Lehtola, C. Steigemann,
-// M. J. T. Oliveira, M. A. L. Marques, SoftwareX 7, 1 (2018).
 package libxcref
 
 /*

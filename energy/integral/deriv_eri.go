@@ -1,0 +1,684 @@
+package integral
+
+// First derivatives of electron-repulsion integrals contracted with
+// densities: the two-electron part of analytic SCF gradients.
+//
+// Method. For a shell quartet (AB|CD) the derivative with respect to A is
+// (Obara & Saika 1986; T. Helgaker and P. R. Taylor, Theor. Chim. Acta 83,
+// 177 (1992), for the derivative relation of Gaussians)
+//
+//	∂/∂A_i (ab|cd) = 2α·(a+1ᵢ b|cd) − aᵢ·(a−1ᵢ b|cd),
+//
+// with the factor 2α inside the primitive sums, and the same for B and C;
+// translational invariance gives the fourth centre,
+// ∂/∂D = −(∂/∂A + ∂/∂B + ∂/∂C), so three centres are differentiated
+// explicitly. All required classes come from a single vertical recursion
+// per primitive quartet (Obara & Saika 1986, eq. (39), as organized by
+// M. Head-Gordon and J. A. Pople, J. Chem. Phys. 89, 5777 (1988)) carried
+// one angular-momentum unit higher on each side: its [e0|f0] values are
+// contracted four times, unweighted and weighted with 2α, 2β and 2γ, and
+// the horizontal recursion of Head-Gordon and Pople then yields the raised
+// classes (a+1 b|cd), (a b+1|cd), (ab|c+1 d) and the lowered classes
+// (a−1 b|cd), (a b−1|cd), (ab|c−1 d). The recursions are those of the
+// energy engine (eri_generic.go).
+//
+// The derivative integrals are contracted in the Cartesian components of
+// the original shells with the two-particle density
+//
+//	Γ_abcd = D_ab D_cd − c_x Σ_s (D^s_ac D^s_bd + D^s_ad D^s_bc)
+//
+// (D the total density, D^s the spin densities, c_x = exchangeFactor/2),
+// which has the 8-fold permutational symmetry of the integrals, so only
+// unique shell quartets (i ≥ j, k ≥ l, ij ≥ kl) are visited, each with its
+// degeneracy. Γ is carried back from the final functions to Cartesian
+// components once per quartet (transpose of the shell transformations),
+// so derivative blocks are never transformed.
+
+import (
+	"math"
+	"runtime"
+	"sync"
+	"sync/atomic"
+)
+
+// derivScreenThreshold drops a unique shell quartet when the estimate
+// Q_ij·Q_kl·max|Γ| of its contribution is below it, Q being the Schwarz
+// factors of the energy engine and max|Γ| the bound
+// P_ij P_kl + c_x·n_s·(P^s_ik P^s_jl + P^s_il P^s_jk) built from the largest
+// density elements of the shell-pair blocks. It matches the threshold the
+// Fock build uses for the integrals themselves (common practice: 1e-12
+// for energies converged to 1e-8 and gradients to 1e-6). Derivative
+// integrals are not strictly bounded by the Schwarz product; the estimate
+// is the usual density-weighted Schwarz screening.
+const derivScreenThreshold = 1e-12
+
+// derivQuartetsPerChunk is the fixed number of unique shell quartets (in
+// the enumeration order, before screening) that form one unit of parallel
+// work. Chunk results are summed in chunk order, so the gradient does not
+// depend on the number of threads.
+const derivQuartetsPerChunk = 2048
+
+// derivPrim is one kept primitive pair of a shell pair.
+type derivPrim struct {
+	zeta, oo2z float64
+	p, pa      [3]float64
+	k          float64 // c_α c_β exp(−αβ/ζ·AB²)/ζ · √2 π^{5/4}, as in eriPrim
+	ta, tb     float64 // 2α, 2β of the first and second shell
+}
+
+// derivPair is a shell pair prepared for derivative integrals, oriented
+// so that la ≥ lb.
+type derivPair struct {
+	a, b   int
+	la, lb int
+	ab     [3]float64
+	prims  []derivPrim
+}
+
+func (p *derivPair) key() int { return (p.la+p.lb)*16 + p.la }
+
+// newDerivPair prepares shells i and j. A primitive pair is dropped when
+// the bound of the energy engine (eriPrimThreshold), with both momenta
+// raised by one and multiplied by max(1, 2α, 2β), is below the threshold.
+func newDerivPair(b *Basis, i, j int) derivPair {
+	sa, sb := &b.shells[i], &b.shells[j]
+	p := derivPair{a: i, b: j}
+	if sb.l > sa.l {
+		sa, sb = sb, sa
+		p.a, p.b = j, i
+	}
+	p.la, p.lb = sa.l, sb.l
+	var ab2 float64
+	for k := 0; k < 3; k++ {
+		p.ab[k] = sa.center[k] - sb.center[k]
+		ab2 += p.ab[k] * p.ab[k]
+	}
+	pre := math.Sqrt2 * math.Pow(math.Pi, 1.25)
+	for u, al := range sa.exps {
+		for v, be := range sb.exps {
+			z := al + be
+			kab := math.Exp(-al * be / z * ab2)
+			c := sa.coefs[u] * sb.coefs[v]
+			var pr derivPrim
+			pr.zeta = z
+			pr.oo2z = 0.5 / z
+			pr.ta, pr.tb = 2*al, 2*be
+			var dpa, dpb float64
+			for k := 0; k < 3; k++ {
+				pr.p[k] = (al*sa.center[k] + be*sb.center[k]) / z
+				pr.pa[k] = pr.p[k] - sa.center[k]
+				dpa += pr.pa[k] * pr.pa[k]
+				d := pr.p[k] - sb.center[k]
+				dpb += d * d
+			}
+			s := 1 / math.Sqrt(z)
+			bound := math.Abs(c) * math.Pow(math.Pi/z, 1.5) * kab *
+				math.Pow(math.Sqrt(dpa)+s, float64(p.la+1)) * math.Pow(math.Sqrt(dpb)+s, float64(p.lb+1)) *
+				math.Max(1, 2*math.Max(al, be))
+			if bound < eriPrimThreshold {
+				continue
+			}
+			pr.k = c * kab / z * pre
+			p.prims = append(p.prims, pr)
+		}
+	}
+	return p
+}
+
+// eriDeriv holds what the derivative routines need beyond the energy
+// engine: derivative shell-pair data and the transposed transformations.
+type eriDeriv struct {
+	e      *ERIEngine
+	b      *Basis
+	maxL   int
+	pairs  []derivPair // triangular, index i(i+1)/2+j
+	transT [][]float64 // per shell: ncart×nfunc transpose of trans (nil for Cartesian)
+	scale  [][]float64 // per shell: diagonal of trans for Cartesian shells
+}
+
+func newERIDeriv(e *ERIEngine) *eriDeriv {
+	b := e.basis
+	d := &eriDeriv{e: e, b: b, maxL: b.MaxL}
+	ns := len(b.shells)
+	d.pairs = make([]derivPair, ns*(ns+1)/2)
+	for i := 0; i < ns; i++ {
+		for j := 0; j <= i; j++ {
+			d.pairs[i*(i+1)/2+j] = newDerivPair(b, i, j)
+		}
+	}
+	d.transT = make([][]float64, ns)
+	d.scale = make([][]float64, ns)
+	for i := range b.shells {
+		s := &b.shells[i]
+		if e.info[i].general {
+			t := make([]float64, s.ncart*s.nfunc)
+			for f := 0; f < s.nfunc; f++ {
+				for c := 0; c < s.ncart; c++ {
+					t[c*s.nfunc+f] = s.trans[f*s.ncart+c]
+				}
+			}
+			d.transT[i] = t
+		} else {
+			d.scale[i] = make([]float64, s.ncart)
+			for c := range d.scale[i] {
+				d.scale[i][c] = s.trans[c*s.ncart+c]
+			}
+		}
+	}
+	return d
+}
+
+func (d *eriDeriv) pair(i, j int) *derivPair {
+	if i < j {
+		i, j = j, i
+	}
+	return &d.pairs[i*(i+1)/2+j]
+}
+
+// derivWork is the scratch memory of one goroutine.
+type derivWork struct {
+	w               *ERIWorkspace // recursion buffers, sized for momenta up to maxL+1
+	tp, acc0, accA  []float64
+	accB, accC, sub []float64
+	up, down        [3][]float64 // Cartesian raised / lowered classes for centres A, B, C
+	gam, gtmp       []float64    // two-particle density, final then Cartesian
+	vrrOff          [eriMaxTab + 3]int
+}
+
+func (d *eriDeriv) newWork() *derivWork {
+	L := d.maxL
+	w := &ERIWorkspace{}
+	w.vrr = make([]float64, eriVRRSize(2*L+1, 2*L+1))
+	w.acc = make([]float64, 1) // unused; non-empty for eriHRRKet's identity test
+	nh := 0
+	for la := 0; la <= L+1; la++ {
+		for lb := 0; lb <= L+1; lb++ {
+			for lc := 0; lc <= L+1; lc++ {
+				for ld := 0; ld <= L+1; ld++ {
+					_, h := eriHRRSizes(la, lb, lc, ld)
+					nh = max(nh, h)
+				}
+			}
+		}
+	}
+	w.h1 = make([]float64, nh)
+	w.h2 = make([]float64, nh)
+	w.out = make([]float64, 1)
+	dw := &derivWork{w: w}
+	nacc := eriCum(2*L+2) * eriCum(2*L+2)
+	dw.tp = make([]float64, nacc)
+	dw.acc0 = make([]float64, nacc)
+	dw.accA = make([]float64, nacc)
+	dw.accB = make([]float64, nacc)
+	dw.accC = make([]float64, nacc)
+	dw.sub = make([]float64, nacc)
+	nc := basisNCart(L)
+	nblk := basisNCart(L+1) * nc * nc * nc
+	for x := 0; x < 3; x++ {
+		dw.up[x] = make([]float64, nblk)
+		dw.down[x] = make([]float64, nblk)
+	}
+	dw.gam = make([]float64, nc*nc*nc*nc)
+	dw.gtmp = make([]float64, nc*nc*nc*nc)
+	return dw
+}
+
+// accumulate adds wt·[e0|f0]⁽⁰⁾ for |e| ∈ [eLo, eHi], |f| ∈ [fLo, fHi]
+// from the vertical-recursion storage V (ket levels at off, lcd1 the top
+// ket level, L the total order) to acc laid out [e][f] over those ranges.
+func derivAccumulate(acc, V []float64, off []int, eLo, eHi, fLo, fHi, lcd1, L int, wt float64) {
+	nf := eriCum(fHi+1) - eriCum(fLo)
+	e0, e1 := eriCum(eLo), eriCum(eHi+1)
+	for k := fLo; k <= fHi; k++ {
+		nfk := basisNCart(k)
+		nmk := lcd1 - k + 1
+		if k == 0 {
+			nmk = L + 1
+		}
+		fRel := eriCum(k) - eriCum(fLo)
+		lv := V[off[k]:]
+		for n := e0; n < e1; n++ {
+			a := acc[(n-e0)*nf+fRel : (n-e0)*nf+fRel+nfk]
+			src := lv[n*nfk*nmk:]
+			for fc := range a {
+				a[fc] += wt * src[fc*nmk]
+			}
+		}
+	}
+}
+
+// extract copies the part |e| ∈ [eLo, eHi], |f| ∈ [fLo, fHi] of src (laid
+// out [e][f] over |e| ≥ sE, |f| ∈ [sF, sFHi]) to dst, laid out over the
+// smaller ranges.
+func derivExtract(dst, src []float64, sE, sF, sFHi, eLo, eHi, fLo, fHi int) []float64 {
+	nfs := eriCum(sFHi+1) - eriCum(sF)
+	nfd := eriCum(fHi+1) - eriCum(fLo)
+	fo := eriCum(fLo) - eriCum(sF)
+	e0, e1 := eriCum(eLo), eriCum(eHi+1)
+	for n := e0; n < e1; n++ {
+		s := (n - eriCum(sE)) * nfs
+		copy(dst[(n-e0)*nfd:(n-e0+1)*nfd], src[s+fo:s+fo+nfd])
+	}
+	return dst[:(e1-e0)*nfd]
+}
+
+// hrr turns contracted [e0|f0] (e ∈ [la, la+lb], f ∈ [lc, lc+ld]) into the
+// Cartesian class (ab|cd) and copies it to dst.
+func derivHRR(w *ERIWorkspace, acc []float64, la, lb, lc, ld int, ab, cd [3]float64, dst []float64) {
+	nf := eriCum(lc+ld+1) - eriCum(lc)
+	g := eriHRRBra(w, acc, la, lb, nf, ab)
+	r := eriHRRKet(w, g, la, lb, lc, ld, cd)
+	copy(dst, r)
+}
+
+// cartesianDeriv fills dw.up and dw.down with the raised and lowered
+// Cartesian classes of centres A, B, C of the canonical quartet (bra|ket)
+// (shells bra.a, bra.b, ket.a, ket.b).
+func (d *eriDeriv) cartesianDeriv(dw *derivWork, bra, ket *derivPair) {
+	la, lb, lc, ld := bra.la, bra.lb, ket.la, ket.lb
+	lab, lcd := la+lb, lc+ld
+	lab1, lcd1 := lab+1, lcd+1
+	L := lab1 + lcd1
+	e0, f0 := max(la-1, 0), max(lc-1, 0)
+	nT := (eriCum(lab1+1) - eriCum(e0)) * (eriCum(lcd+1) - eriCum(f0))
+	nC := (eriCum(lab+1) - eriCum(la)) * (eriCum(lcd1+1) - eriCum(lc+1))
+	tp, acc0, accA, accB := dw.tp[:nT], dw.acc0[:nT], dw.accA[:nT], dw.accB[:nT]
+	accC := dw.accC[:nC]
+	clear(acc0)
+	clear(accA)
+	clear(accB)
+	clear(accC)
+
+	neAll := eriCum(lab1 + 1)
+	off := dw.vrrOff[:]
+	off[0] = 0
+	off[1] = neAll * (L + 1)
+	for k := 1; k <= lcd1; k++ {
+		off[k+1] = off[k] + neAll*basisNCart(k)*(lcd1-k+1)
+	}
+	V := dw.w.vrr
+	F := dw.w.boys[:L+1]
+	for pi := range bra.prims {
+		p := &bra.prims[pi]
+		clear(tp)
+		for qi := range ket.prims {
+			q := &ket.prims[qi]
+			zn := p.zeta + q.zeta
+			ozn := 1 / zn
+			rho := p.zeta * q.zeta * ozn
+			pq := [3]float64{p.p[0] - q.p[0], p.p[1] - q.p[1], p.p[2] - q.p[2]}
+			t := rho * (pq[0]*pq[0] + pq[1]*pq[1] + pq[2]*pq[2])
+			pref := p.k * q.k * math.Sqrt(ozn)
+			Boys(L, t, F)
+			rz := q.zeta * ozn
+			re := p.zeta * ozn
+			c := vrrCoef{
+				pa:    p.pa,
+				qc:    q.pa,
+				wp:    [3]float64{-rz * pq[0], -rz * pq[1], -rz * pq[2]},
+				wq:    [3]float64{re * pq[0], re * pq[1], re * pq[2]},
+				oo2z:  p.oo2z,
+				oo2e:  q.oo2z,
+				rz:    rz,
+				re:    re,
+				oo2zn: 0.5 * ozn,
+			}
+			for m := 0; m <= L; m++ {
+				V[m] = F[m] * pref
+			}
+			eriVRRBra(V, lab1, L, &c)
+			for k := 1; k <= lcd1; k++ {
+				// Level k feeds |e| ≥ e0 at levels ≤ lcd and |e| ≥ la at lcd1.
+				eLo := max(0, min(la-(lcd1-k), e0-(lcd-k)))
+				eriVRRKet(V, off, k, eLo, neAll, lcd1, L, &c)
+			}
+			derivAccumulate(tp, V, off, e0, lab1, f0, lcd, lcd1, L, 1)
+			derivAccumulate(accC, V, off, la, lab, lc+1, lcd1, lcd1, L, q.ta)
+		}
+		for i, v := range tp {
+			acc0[i] += v
+			accA[i] += p.ta * v
+			accB[i] += p.tb * v
+		}
+	}
+	w := dw.w
+	// Raised classes.
+	derivHRR(w, derivExtract(dw.sub, accA, e0, f0, lcd, la+1, lab1, lc, lcd), la+1, lb, lc, ld, bra.ab, ket.ab, dw.up[0])
+	derivHRR(w, derivExtract(dw.sub, accB, e0, f0, lcd, la, lab1, lc, lcd), la, lb+1, lc, ld, bra.ab, ket.ab, dw.up[1])
+	derivHRR(w, accC, la, lb, lc+1, ld, bra.ab, ket.ab, dw.up[2])
+	// Lowered classes.
+	if la > 0 {
+		derivHRR(w, derivExtract(dw.sub, acc0, e0, f0, lcd, la-1, lab-1, lc, lcd), la-1, lb, lc, ld, bra.ab, ket.ab, dw.down[0])
+	}
+	if lb > 0 {
+		derivHRR(w, derivExtract(dw.sub, acc0, e0, f0, lcd, la, lab-1, lc, lcd), la, lb-1, lc, ld, bra.ab, ket.ab, dw.down[1])
+	}
+	if lc > 0 {
+		derivHRR(w, derivExtract(dw.sub, acc0, e0, f0, lcd, la, lab, lc-1, lcd-1), la, lb, lc-1, ld, bra.ab, ket.ab, dw.down[2])
+	}
+}
+
+// contractCentre returns Σ Γ[p][r][q]·(up[p][r+1_k][q] − r_k·down[p][r−1_k][q])
+// for k = x, y, z: the derivative with respect to the centre of the middle
+// index (momentum l) of the Cartesian quartet block Γ viewed as
+// [pre][ncart(l)][post].
+func derivContractCentre(l, pre, post int, gam, up, down []float64) [3]float64 {
+	var g [3]float64
+	n, nu, nd := basisNCart(l), basisNCart(l+1), 0
+	if l > 0 {
+		nd = basisNCart(l - 1)
+	}
+	c0, cu, cd := eriCum(l), eriCum(l+1), eriCum(l-1)
+	for p := 0; p < pre; p++ {
+		for r := 0; r < n; r++ {
+			t := &eriCartTab[c0+r]
+			gr := gam[(p*n+r)*post : (p*n+r+1)*post]
+			for k := 0; k < 3; k++ {
+				ru := int(t.plus[k]) - cu
+				u := up[(p*nu+ru)*post : (p*nu+ru+1)*post]
+				var s float64
+				for q, x := range gr {
+					s += x * u[q]
+				}
+				if nk := t.n[k]; nk > 0 {
+					rd := int(t.minus[k]) - cd
+					dn := down[(p*nd+rd)*post : (p*nd+rd+1)*post]
+					var s2 float64
+					for q, x := range gr {
+						s2 += x * dn[q]
+					}
+					s -= float64(nk) * s2
+				}
+				g[k] += s
+			}
+		}
+	}
+	return g
+}
+
+// derivDensity holds the densities of one gradient evaluation.
+type derivDensity struct {
+	n    int
+	dt   []float64   // total density
+	ds   [][]float64 // spin densities used in exchange (total for restricted)
+	cx   float64     // exchange coefficient c_x·(restricted: ½ for D^s = D/2 twice)
+	pt   []float64   // per shell pair: max |dt|
+	ps   []float64   // per shell pair: max over spins of |ds|
+	nspn float64
+}
+
+func (d *eriDeriv) newDensityData(dens [][]float64, exchangeFactor float64) *derivDensity {
+	b := d.b
+	n := b.NBF
+	dd := &derivDensity{n: n}
+	if len(dens) == 1 {
+		dd.dt = dens[0]
+		// Two spins with D^s = D/2: Σ_s D^s D^s = ½ D D.
+		dd.ds = dens[:1]
+		dd.cx = exchangeFactor / 4
+		dd.nspn = 1
+	} else {
+		dd.dt = make([]float64, n*n)
+		for _, m := range dens {
+			for i, v := range m {
+				dd.dt[i] += v
+			}
+		}
+		dd.ds = dens
+		dd.cx = exchangeFactor / 2
+		dd.nspn = float64(len(dens))
+	}
+	ns := len(b.shells)
+	dd.pt = make([]float64, ns*ns)
+	dd.ps = make([]float64, ns*ns)
+	blockMax := func(m []float64, i, j int) float64 {
+		var x float64
+		for p := b.Offsets[i]; p < b.Offsets[i]+b.shells[i].nfunc; p++ {
+			for q := b.Offsets[j]; q < b.Offsets[j]+b.shells[j].nfunc; q++ {
+				x = math.Max(x, math.Abs(m[p*n+q]))
+			}
+		}
+		return x
+	}
+	for i := 0; i < ns; i++ {
+		for j := 0; j < ns; j++ {
+			dd.pt[i*ns+j] = blockMax(dd.dt, i, j)
+			for _, m := range dd.ds {
+				dd.ps[i*ns+j] = math.Max(dd.ps[i*ns+j], blockMax(m, i, j))
+			}
+		}
+	}
+	return dd
+}
+
+// buildGamma writes fac·Γ over the final functions of shells sh (A, B, C,
+// D), then carries it to Cartesian components; returns the Cartesian block
+// [a][b][c][d].
+func (d *eriDeriv) buildGamma(dw *derivWork, dd *derivDensity, sh [4]int, fac float64) []float64 {
+	b := d.b
+	n := dd.n
+	var nf, off [4]int
+	for x := 0; x < 4; x++ {
+		nf[x] = b.shells[sh[x]].nfunc
+		off[x] = b.Offsets[sh[x]]
+	}
+	total := nf[0] * nf[1] * nf[2] * nf[3]
+	g := dw.gam[:total]
+	dt := dd.dt
+	idx := 0
+	for a := off[0]; a < off[0]+nf[0]; a++ {
+		for bb := off[1]; bb < off[1]+nf[1]; bb++ {
+			dab := fac * dt[a*n+bb]
+			for c := off[2]; c < off[2]+nf[2]; c++ {
+				row := dt[c*n+off[3] : c*n+off[3]+nf[3]]
+				for q, v := range row {
+					g[idx+q] = dab * v
+				}
+				idx += nf[3]
+			}
+		}
+	}
+	if dd.cx != 0 {
+		cx := fac * dd.cx
+		for _, m := range dd.ds {
+			idx = 0
+			for a := off[0]; a < off[0]+nf[0]; a++ {
+				for bb := off[1]; bb < off[1]+nf[1]; bb++ {
+					for c := off[2]; c < off[2]+nf[2]; c++ {
+						dac, dbc := cx*m[a*n+c], cx*m[bb*n+c]
+						rbd := m[bb*n+off[3] : bb*n+off[3]+nf[3]]
+						rad := m[a*n+off[3] : a*n+off[3]+nf[3]]
+						for q := range rbd {
+							g[idx+q] -= dac*rbd[q] + rad[q]*dbc
+						}
+						idx += nf[3]
+					}
+				}
+			}
+		}
+	}
+	// Back to Cartesian components, one index at a time.
+	src := g
+	dims := nf
+	bufs := [2][]float64{dw.gtmp, dw.gam}
+	bi := 0
+	for x := 0; x < 4; x++ {
+		s := &b.shells[sh[x]]
+		pre, post := 1, 1
+		for y := 0; y < x; y++ {
+			pre *= dims[y]
+		}
+		for y := x + 1; y < 4; y++ {
+			post *= dims[y]
+		}
+		if t := d.transT[sh[x]]; t != nil {
+			dst := bufs[bi]
+			eriTransformAxis(dst, src, pre, s.nfunc, s.ncart, post, t)
+			dims[x] = s.ncart
+			src = dst[:pre*s.ncart*post]
+			bi ^= 1
+			continue
+		}
+		sc := d.scale[sh[x]]
+		for p := 0; p < pre; p++ {
+			for r, f := range sc {
+				blk := src[(p*s.ncart+r)*post : (p*s.ncart+r+1)*post]
+				for q := range blk {
+					blk[q] *= f
+				}
+			}
+		}
+	}
+	// src may alias dw.gam; callers only read it before the next quartet.
+	return src
+}
+
+// GradientJK returns the derivatives with respect to the atom positions of
+// the two-electron energy
+//
+//	E2 = ½ Σ (μν|λσ) D_μν D_λσ − ½·exchangeFactor·Σ_s Σ (μλ|νσ) D^s_μν D^s_λσ,
+//
+// per atom (shell atom indices) in hartree/bohr. dens holds symmetric
+// nbf×nbf row-major densities over the final basis functions: one total
+// density D for a restricted calculation (the exchange term then uses
+// D^s = D/2 for each of two spins), or the α and β densities for an
+// unrestricted one (D = D^α + D^β). exchangeFactor is 1 for HF, the exact
+// exchange fraction of a hybrid functional, 0 for a pure one.
+//
+// Unique shell quartets are screened with derivScreenThreshold and split
+// into fixed chunks of derivQuartetsPerChunk processed by threads
+// goroutines (threads < 1: GOMAXPROCS); chunk results are summed in chunk
+// order, so the result does not depend on threads. Three centres of each
+// quartet are differentiated, the fourth follows from translational
+// invariance. The result has max(natoms, 1 + highest shell atom) entries.
+func (e *ERIEngine) GradientJK(dens [][]float64, exchangeFactor float64, natoms int, threads int) [][3]float64 {
+	if len(dens) < 1 || len(dens) > 2 {
+		panic("integral: GradientJK: need one (restricted) or two (unrestricted) densities")
+	}
+	b := e.basis
+	for _, m := range dens {
+		b.derivCheckMatrix(m, "GradientJK")
+	}
+	natoms = b.derivNumAtoms(natoms)
+	if threads < 1 {
+		threads = runtime.GOMAXPROCS(0)
+	}
+	d := newERIDeriv(e)
+	dd := d.newDensityData(dens, exchangeFactor)
+	ns := e.nshell
+	atom := make([]int, ns)
+	for i := range b.Shells {
+		atom[i] = b.Shells[i].Atom
+	}
+	np := ns * (ns + 1) / 2
+	pi, pj := make([]int32, np), make([]int32, np)
+	for i := 0; i < ns; i++ {
+		for j := 0; j <= i; j++ {
+			pi[i*(i+1)/2+j], pj[i*(i+1)/2+j] = int32(i), int32(j)
+		}
+	}
+	nq := np * (np + 1) / 2
+	nc := (nq + derivQuartetsPerChunk - 1) / derivQuartetsPerChunk
+	total := make([]float64, 3*natoms)
+
+	var next atomic.Int64
+	var mu sync.Mutex
+	results := make([][]float64, nc)
+	reduced := 0
+	var wg sync.WaitGroup
+	for t := 0; t < min(threads, max(nc, 1)); t++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			dw := d.newWork()
+			for {
+				c := int(next.Add(1)) - 1
+				if c >= nc {
+					return
+				}
+				g := make([]float64, 3*natoms)
+				start := c * derivQuartetsPerChunk
+				end := min(start+derivQuartetsPerChunk, nq)
+				// Decode the first quartet index: t = ij(ij+1)/2 + kl.
+				ij := int((math.Sqrt(float64(8*start+1)) - 1) / 2)
+				for ij*(ij+1)/2 > start {
+					ij--
+				}
+				for (ij+1)*(ij+2)/2 <= start {
+					ij++
+				}
+				kl := start - ij*(ij+1)/2
+				for q := start; q < end; q++ {
+					d.quartetGradient(dw, dd, int(pi[ij]), int(pj[ij]), int(pi[kl]), int(pj[kl]), atom, g)
+					kl++
+					if kl > ij {
+						ij++
+						kl = 0
+					}
+				}
+				mu.Lock()
+				results[c] = g
+				for reduced < nc && results[reduced] != nil {
+					for x, v := range results[reduced] {
+						total[x] += v
+					}
+					results[reduced] = nil
+					reduced++
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	wg.Wait()
+	grad := make([][3]float64, natoms)
+	for a := range grad {
+		grad[a] = [3]float64{total[3*a], total[3*a+1], total[3*a+2]}
+	}
+	return grad
+}
+
+// quartetGradient adds the contribution of the unique quartet (ij|kl)
+// (i ≥ j, k ≥ l, ij ≥ kl) to g (3·natoms).
+func (d *eriDeriv) quartetGradient(dw *derivWork, dd *derivDensity, i, j, k, l int, atom []int, g []float64) {
+	ai, aj, ak, al := atom[i], atom[j], atom[k], atom[l]
+	if ai == aj && ai == ak && ai == al {
+		return // rigid translation of one atom: no contribution
+	}
+	ns := d.e.nshell
+	q := d.e.schwarz[i*ns+j] * d.e.schwarz[k*ns+l]
+	gmax := dd.pt[i*ns+j]*dd.pt[k*ns+l] +
+		dd.cx*dd.nspn*(dd.ps[i*ns+k]*dd.ps[j*ns+l]+dd.ps[i*ns+l]*dd.ps[j*ns+k])
+	if q*gmax < derivScreenThreshold {
+		return
+	}
+	deg := 1.0
+	if i != j {
+		deg *= 2
+	}
+	if k != l {
+		deg *= 2
+	}
+	if i != k || j != l {
+		deg *= 2
+	}
+	bra, ket := d.pair(i, j), d.pair(k, l)
+	if ket.key() > bra.key() {
+		bra, ket = ket, bra
+	}
+	sh := [4]int{bra.a, bra.b, ket.a, ket.b}
+	gam := d.buildGamma(dw, dd, sh, 0.5*deg)
+	d.cartesianDeriv(dw, bra, ket)
+	var nc [4]int
+	for x := 0; x < 4; x++ {
+		nc[x] = d.b.shells[sh[x]].ncart
+	}
+	gA := derivContractCentre(bra.la, 1, nc[1]*nc[2]*nc[3], gam, dw.up[0], dw.down[0])
+	gB := derivContractCentre(bra.lb, nc[0], nc[2]*nc[3], gam, dw.up[1], dw.down[1])
+	gC := derivContractCentre(ket.la, nc[0]*nc[1], nc[3], gam, dw.up[2], dw.down[2])
+	for x := 0; x < 3; x++ {
+		g[3*atom[sh[0]]+x] += gA[x]
+		g[3*atom[sh[1]]+x] += gB[x]
+		g[3*atom[sh[2]]+x] += gC[x]
+		g[3*atom[sh[3]]+x] -= gA[x] + gB[x] + gC[x]
+	}
+}

@@ -1,0 +1,31 @@
+package integral
+
+import (
+	"runtime"
+	"sort"
+	"syscall"
+	"testing"
+	"time"
+)
+
+func threadCPU() time.Duration {
+	var ru syscall.Rusage
+	syscall.Getrusage(1, &ru) // RUSAGE_THREAD
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+}
+
+func TestTmpCPU(t *testing.T) {
+	runtime.LockOSThread()
+	defer runtime.UnlockOSThread()
+	e := NewERI(NewBasis(eriBenzeneShells(t)))
+	w := e.NewWorkspace()
+	var ds []float64
+	var sum float64
+	for r := 0; r < 5; r++ {
+		c0 := threadCPU()
+		_, sum = eriAllUnique(e, w)
+		ds = append(ds, (threadCPU() - c0).Seconds())
+	}
+	sort.Float64s(ds)
+	t.Logf("cpu times %.3f median %.3f checksum %.12f", ds, ds[2], sum)
+}

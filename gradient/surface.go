@@ -1,0 +1,382 @@
+package gradient
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sync"
+	"sync/atomic"
+
+	"poise/energy/basis"
+	"poise/energy/dft"
+	"poise/energy/grid"
+	"poise/energy/integral"
+	"poise/energy/molecule"
+	"poise/energy/scf"
+	"poise/energy/xc"
+)
+
+// Request says what an evaluation of a Surface must produce besides the
+// energy, and with which resources.
+type Request struct {
+	Gradient bool // fill Point.Gradient
+	Dipole   bool // fill Point.DipoleAU
+	// Threads is the thread budget of this evaluation; 0 means the
+	// surface's own default. A caller that evaluates several points at
+	// once (a finite-difference Hessian) splits its budget: k concurrent
+	// evaluations with Threads = budget/k each.
+	Threads int
+	// KeepWarmStart evaluates from the surface's current warm-start state
+	// without replacing it by this point's. Concurrent evaluations of
+	// displaced points use it so that every point starts from the same
+	// state and the results do not depend on their order.
+	KeepWarmStart bool
+}
+
+// Point is the result of one evaluation, in memory the caller owns.
+type Point struct {
+	EnergyHartree float64
+	// Gradient is dE/dx for the 3N coordinates (Eh/bohr). When a gradient
+	// is requested it is written into this slice if it has length 3N and
+	// allocated if it is nil; any other length is an error.
+	Gradient []float64
+	// DipoleAU is the dipole moment (e·bohr) about the centre of mass.
+	DipoleAU [3]float64
+	// SCFIterations is the number of SCF iterations the energy took (0
+	// for surfaces without an SCF).
+	SCFIterations int
+}
+
+// Surface is a potential-energy surface: coordinates in, energy and the
+// requested properties out. Geometry relaxation and Hessians depend on
+// this interface only.
+type Surface interface {
+	// NumAtoms is the number of atoms; coordinates have 3·NumAtoms
+	// elements (x, y, z per atom, bohr).
+	NumAtoms() int
+	// Evaluate computes the energy (and what req asks for) at coordsBohr
+	// and writes it into out. It stops early with ctx's error when ctx is
+	// cancelled.
+	Evaluate(ctx context.Context, coordsBohr []float64, req Request, out *Point) error
+	// Evaluations is the number of energy (and gradient) evaluations made
+	// so far.
+	Evaluations() int
+}
+
+// Config is the level of theory of an SCF surface.
+type Config struct {
+	Basis      *basis.Set
+	Convention basis.Convention
+	// Method is the exchange–correlation functional; nil or "hf" means
+	// Hartree–Fock.
+	Method *xc.Functional
+	// GridLevel is the DFT grid level; 0 means grid.DefaultLevel.
+	GridLevel int
+	// Frame orients the DFT grids of every geometry; nil means the
+	// standard frame of the molecule's starting geometry. It stays fixed
+	// for the life of the surface, so that the energy is a smooth function
+	// of the coordinates (the grid points move with their atoms).
+	Frame *grid.Frame
+	// SCF are the SCF options; XC and Guess are set by the surface.
+	// SCF.Threads is the default thread budget of an evaluation, and
+	// SCF.MemoryBytes its memory budget, scaled down with the threads of
+	// a request that asks for fewer.
+	SCF scf.Options
+	// Numeric asks for central-difference gradients (Numeric, with Step)
+	// instead of analytic ones.
+	Numeric bool
+	// Step is the central-difference step in bohr; 0 means DefaultStep.
+	Step float64
+}
+
+// SCFSurface is the Surface of a molecule at a level of theory, computed
+// by SCF energies and analytic (or central-difference) gradients. Its
+// basis shells are rebuilt for every geometry (shell centres move with the
+// atoms); the DFT grid is rebuilt in a fixed frame. It is safe for
+// concurrent use.
+type SCFSurface struct {
+	mol     *molecule.Molecule // template: elements, masses, charge, spin
+	cfg     Config
+	frame   grid.Frame
+	nbf     int
+	threads int
+
+	mu   sync.Mutex
+	warm *scf.State
+
+	evals atomic.Int64
+}
+
+// NewSCFSurface returns the surface of mol (its elements, masses, charge
+// and multiplicity; the positions only choose the grid frame when
+// cfg.Frame is nil) at the level of theory of cfg.
+func NewSCFSurface(mol *molecule.Molecule, cfg Config) (*SCFSurface, error) {
+	if mol == nil || len(mol.Atoms) == 0 {
+		return nil, errors.New("gradient: no atoms")
+	}
+	if cfg.Basis == nil {
+		return nil, errors.New("gradient: no basis set")
+	}
+	if cfg.GridLevel == 0 {
+		cfg.GridLevel = grid.DefaultLevel
+	}
+	if _, err := grid.LevelInfo(cfg.GridLevel); err != nil {
+		return nil, err
+	}
+	if cfg.Step < 0 || cfg.Step > 1e-2 || math.IsNaN(cfg.Step) {
+		return nil, fmt.Errorf("gradient: central-difference step %g bohr outside (0, 0.01]", cfg.Step)
+	}
+	m := mol.Clone()
+	if err := m.SetSpin(mol.Charge, mol.Multiplicity); err != nil {
+		return nil, err
+	}
+	shells, err := cfg.Basis.Shells(m, cfg.Convention)
+	if err != nil {
+		return nil, err
+	}
+	_, nbf := basis.Offsets(shells)
+	s := &SCFSurface{mol: m, cfg: cfg, nbf: nbf}
+	s.threads = cfg.SCF.Threads
+	if s.threads <= 0 {
+		s.threads = runtime.GOMAXPROCS(0)
+	}
+	if cfg.Frame != nil {
+		s.frame = *cfg.Frame
+	} else {
+		z, pos := atomsOf(m)
+		if s.frame, err = grid.StandardFrame(z, pos); err != nil {
+			return nil, err
+		}
+	}
+	if cfg.SCF.Guess != nil {
+		if err := s.SetWarmStart(cfg.SCF.Guess); err != nil {
+			return nil, err
+		}
+	}
+	return s, nil
+}
+
+// NumAtoms is the number of atoms.
+func (s *SCFSurface) NumAtoms() int { return len(s.mol.Atoms) }
+
+// Evaluations is the number of SCF energies computed so far, those of the
+// displaced points of central-difference gradients included.
+func (s *SCFSurface) Evaluations() int { return int(s.evals.Load()) }
+
+// Frame is the orientation of the DFT grids, fixed for the surface's life.
+func (s *SCFSurface) Frame() grid.Frame { return s.frame }
+
+// WarmStart returns a copy of the warm-start state (the density the next
+// evaluation starts from), or nil before the first evaluation. It is plain
+// data (JSON-serializable) for saving and restoring a long calculation.
+func (s *SCFSurface) WarmStart() *scf.State {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return copyState(s.warm)
+}
+
+// SetWarmStart replaces the warm-start state (nil: start the next
+// evaluation from the default guess). The state must be for this basis.
+func (s *SCFSurface) SetWarmStart(st *scf.State) error {
+	if st != nil {
+		if st.NBF != s.nbf {
+			return fmt.Errorf("gradient: warm-start state has %d basis functions, the surface %d", st.NBF, s.nbf)
+		}
+		if len(st.Density) != 1 && len(st.Density) != 2 {
+			return fmt.Errorf("gradient: warm-start state has %d densities, want 1 or 2", len(st.Density))
+		}
+		for _, d := range st.Density {
+			if len(d) != st.NBF*st.NBF {
+				return fmt.Errorf("gradient: warm-start density has %d elements, want %d", len(d), st.NBF*st.NBF)
+			}
+		}
+	}
+	s.mu.Lock()
+	s.warm = copyState(st)
+	s.mu.Unlock()
+	return nil
+}
+
+func copyState(st *scf.State) *scf.State {
+	if st == nil {
+		return nil
+	}
+	c := &scf.State{NBF: st.NBF, Density: make([][]float64, len(st.Density))}
+	for i, d := range st.Density {
+		c.Density[i] = append([]float64(nil), d...)
+	}
+	return c
+}
+
+// Evaluate computes the SCF energy at coordsBohr and, as requested, the
+// gradient and the dipole moment. A calculation that does not converge
+// returns an error wrapping scf.ErrNotConverged (out.EnergyHartree then
+// holds the last energy) and leaves the warm-start state unchanged.
+func (s *SCFSurface) Evaluate(ctx context.Context, coordsBohr []float64, req Request, out *Point) error {
+	nat := len(s.mol.Atoms)
+	if out == nil {
+		return errors.New("gradient: nil output point")
+	}
+	if req.Gradient && out.Gradient != nil && len(out.Gradient) != 3*nat {
+		return fmt.Errorf("gradient: gradient buffer has %d elements, want %d", len(out.Gradient), 3*nat)
+	}
+	threads := req.Threads
+	if threads <= 0 || threads > s.threads {
+		threads = s.threads
+	}
+	s.mu.Lock()
+	guess := s.warm
+	s.mu.Unlock()
+	st, err := s.compute(ctx, coordsBohr, threads, guess, req.Gradient && !s.cfg.Numeric)
+	if st != nil && st.res != nil {
+		out.EnergyHartree = st.res.EnergyHartree
+		out.SCFIterations = st.res.Iterations
+	}
+	if err != nil {
+		return err
+	}
+	res := st.res
+	if req.Dipole {
+		out.DipoleAU = res.DipoleAU
+	}
+	if req.Gradient {
+		if out.Gradient == nil {
+			out.Gradient = make([]float64, 3*nat)
+		}
+		if s.cfg.Numeric {
+			fixed := &fixedStart{s: s, guess: res.State()}
+			if err := Numeric(ctx, fixed, coordsBohr, s.cfg.Step, threads, out.Gradient); err != nil {
+				return err
+			}
+		} else {
+			for a := 0; a < nat; a++ {
+				copy(out.Gradient[3*a:3*a+3], st.grad[a][:])
+			}
+		}
+	}
+	if !req.KeepWarmStart {
+		s.mu.Lock()
+		s.warm = res.State()
+		s.mu.Unlock()
+	}
+	return nil
+}
+
+// fixedStart is the surface seen by the central differences of one point:
+// every displaced energy starts from the density of that point.
+type fixedStart struct {
+	s     *SCFSurface
+	guess *scf.State
+}
+
+func (f *fixedStart) NumAtoms() int    { return f.s.NumAtoms() }
+func (f *fixedStart) Evaluations() int { return f.s.Evaluations() }
+func (f *fixedStart) Evaluate(ctx context.Context, x []float64, req Request, out *Point) error {
+	threads := req.Threads
+	if threads <= 0 || threads > f.s.threads {
+		threads = f.s.threads
+	}
+	st, err := f.s.compute(ctx, x, threads, f.guess, false)
+	if st != nil && st.res != nil {
+		out.EnergyHartree = st.res.EnergyHartree
+		out.SCFIterations = st.res.Iterations
+	}
+	return err
+}
+
+// computed is one SCF point.
+type computed struct {
+	res  *scf.Result
+	grad [][3]float64 // analytic gradient when asked for
+}
+
+// compute runs the SCF at coords with threads threads from guess and, with
+// analytic set, the analytic gradient.
+func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int, guess *scf.State, analytic bool) (*computed, error) {
+	nat := len(s.mol.Atoms)
+	if len(coords) != 3*nat {
+		return nil, fmt.Errorf("gradient: %d coordinates for %d atoms", len(coords), nat)
+	}
+	m := s.mol.Clone()
+	for a := range m.Atoms {
+		for k := 0; k < 3; k++ {
+			v := coords[3*a+k]
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, fmt.Errorf("gradient: coordinate %c of atom %d is %v", "xyz"[k], a+1, v)
+			}
+			m.Atoms[a].Position[k] = v
+		}
+	}
+	for a := 1; a < nat; a++ {
+		for b := 0; b < a; b++ {
+			pa, pb := m.Atoms[a].Position, m.Atoms[b].Position
+			d := math.Sqrt((pa[0]-pb[0])*(pa[0]-pb[0]) + (pa[1]-pb[1])*(pa[1]-pb[1]) + (pa[2]-pb[2])*(pa[2]-pb[2]))
+			if d < minDistanceBohr {
+				return nil, fmt.Errorf("gradient: atoms %d and %d are %.3g bohr apart (at least %g needed)", b+1, a+1, d, minDistanceBohr)
+			}
+		}
+	}
+	shells, err := s.cfg.Basis.Shells(m, s.cfg.Convention)
+	if err != nil {
+		return nil, err
+	}
+	opts := s.cfg.SCF
+	opts.Threads = threads
+	if threads < s.threads && opts.MemoryBytes > 0 {
+		opts.MemoryBytes = opts.MemoryBytes * int64(threads) / int64(s.threads)
+	}
+	opts.Guess = guess
+	opts.XC = nil
+	var pot *dft.Potential
+	if fn := s.cfg.Method; fn != nil && fn.NeedsGrid() {
+		z, pos := atomsOf(m)
+		g, err := grid.New(z, pos, s.cfg.GridLevel, s.frame, threads)
+		if err != nil {
+			return nil, err
+		}
+		pot = dft.New(fn, g, integral.NewBasis(shells), threads)
+		opts.XC = pot
+	}
+	res, err := scf.Run(ctx, m, shells, opts)
+	if res != nil && ctx.Err() == nil {
+		s.evals.Add(1)
+	}
+	if err != nil {
+		return &computed{res: res}, err
+	}
+	c := &computed{res: res}
+	if analytic {
+		g, err := Analytic(ctx, m, shells, res, pot, threads)
+		if err != nil {
+			return c, err
+		}
+		c.grad = g.Total
+	}
+	return c, nil
+}
+
+// minDistanceBohr is the smallest interatomic distance a surface accepts
+// (about 0.05 Å: far inside any physical geometry, so only a broken
+// optimizer step or input reaches it).
+const minDistanceBohr = 0.1
+
+func atomsOf(m *molecule.Molecule) ([]int, [][3]float64) {
+	z := make([]int, len(m.Atoms))
+	pos := make([][3]float64, len(m.Atoms))
+	for i, a := range m.Atoms {
+		z[i], pos[i] = a.Z, a.Position
+	}
+	return z, pos
+}
+
+// Coordinates returns the positions of mol's atoms as 3N coordinates in
+// bohr, the layout of Surface.
+func Coordinates(mol *molecule.Molecule) []float64 {
+	x := make([]float64, 3*len(mol.Atoms))
+	for i, a := range mol.Atoms {
+		copy(x[3*i:3*i+3], a.Position[:])
+	}
+	return x
+}
