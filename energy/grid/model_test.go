@@ -186,3 +186,11 @@ func rotate(pos [][3]float64, r [3][3]float64, t [3]float64) [][3]float64 {
 var testRotations = [][3]float64{
 	{0.3, 0.7, 1.1}, {1.9, 2.3, 0.4}, {-0.8, 1.3, 2.9}, {2.6, 0.2, -1.7}, {0.05, 0.11, 0.07},
 }
+
+// methane returns CH4 with C–H 1.087 Å (common practice), in bohr.
+func methane() ([]int, [][3]float64, [][2]int) {
+	s := 1.087 * units.AngstromBohr / math.Sqrt(3)
+	return []int{6, 1, 1, 1, 1},
+		[][3]float64{{0, 0, 0}, {s, s, s}, {-s, -s, s}, {-s, s, -s}, {s, -s, -s}},
+		[][2]int{{0, 1}, {0, 2}, {0, 3}, {0, 4}}
+}

@@ -10,9 +10,10 @@
 //
 // Candidate symmetry elements are generated so that none can be missed:
 //
-//   - every rotation axis C2 passes through an atom or through the
-//     midpoint of two atoms of the same kind (an atom off the axis has a
-//     partner), and so does any axis of a molecule that has one;
+//   - every C2 axis passes through an atom, or through the midpoint
+//     of two interchanged atoms of the same kind, or, when every atom lies
+//     in the plane perpendicular to it, is the normal of that plane and so a
+//     principal axis of inertia;
 //   - an axis Cn with n ≥ 3 is, outside the cubic and icosahedral groups, a
 //     principal axis of inertia (it makes two principal moments equal); in
 //     the cubic and icosahedral groups it passes through an atom or is the
@@ -58,7 +59,11 @@
 // orthogonal; for the cubic and icosahedral groups two perpendicular C2 or C4
 // axes), generates all its operations R (closure under multiplication), finds
 // for each the atom permutation π_R, and replaces every position by the group
-// average x_i' = (1/|G|) Σ_R R⁻¹ x_{π_R(i)}. The result is invariant under the
-// whole ideal group to rounding error. Linear molecules are projected onto
+// average x_i' = (1/|G|) Σ_R R⁻¹ x_{π_R(i)}. The ideal group is then turned
+// by the rotation that best superposes the average onto the input (mass-
+// weighted least squares with the quaternion method of B. K. P. Horn,
+// J. Opt. Soc. Am. A 4, 629 (1987)) and the average taken again, a few
+// rounds, so that the frame does not rest on one atom's position. The result
+// is invariant under the whole ideal group to rounding error. Linear molecules are projected onto
 // their axis (and averaged with the inversion images for D∞h).
 package pointgroup
