@@ -34,6 +34,7 @@ func newRootCmd() *cobra.Command {
 		newVersionCmd(),
 		newBasisCmd(),
 		newEnergyCmd(),
+		newGradientCmd(),
 		newThermoCmd(),
 	)
 	return root

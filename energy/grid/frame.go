@@ -66,9 +66,12 @@ const degenerateTol = 1e-6
 //
 // Atoms that tie in this order are, in a symmetric molecule, equivalent by
 // symmetry, and any of them gives the same integrals, so the frame rotates
-// with the molecule and the grid is rotation invariant (to rounding). It is
-// not for linear molecules (whose grid may turn about the molecular axis)
-// and for single atoms, and it is only to the tolerance for accidental ties.
+// with the molecule and the grid is rotation invariant (to rounding). For a
+// linear molecule the grid may turn about the molecular axis, which leaves
+// integrals of cylindrically symmetric densities unchanged because every
+// atom's rule then sees only the polar angle; for a single atom the frame
+// does not turn at all. Atoms that tie without being equivalent by symmetry
+// (accidental ties within 1e-8 bohr) break the invariance.
 func StandardFrame(z []int, positions [][3]float64) (Frame, error) {
 	if len(z) != len(positions) {
 		return Frame{}, fmt.Errorf("grid: %d atomic numbers but %d positions", len(z), len(positions))

@@ -3,7 +3,6 @@ package grid
 import (
 	"fmt"
 	"math"
-	"slices"
 	"sync"
 )
 
@@ -49,7 +48,7 @@ var levels = [MaxLevel]LevelSpec{
 	{Level: 2, Radial: [5]int{40, 55, 60, 70, 75}, Angular: [3]int{38, 86, 302}},
 	{Level: 3, Radial: [5]int{55, 70, 80, 90, 95}, Angular: [3]int{50, 110, 590}},
 	{Level: 4, Radial: [5]int{70, 90, 100, 110, 120}, Angular: [3]int{86, 194, 770}},
-	{Level: 5, Radial: [5]int{90, 115, 125, 140, 150}, Angular: [3]int{110, 302, 974}},
+	{Level: 5, Radial: [5]int{90, 115, 125, 140, 150}, Angular: [3]int{110, 302, 1202}},
 }
 
 // LevelInfo returns the description of an accuracy level.
@@ -263,16 +262,25 @@ func build(z []int, positions [][3]float64, spec LevelSpec, frame Frame, threads
 func atomGrid(z int, center [3]float64, spec LevelSpec, f Frame, rules map[int]*angularRule) atomPoints {
 	rr, wr := radialM4(spec.Radial[row(z)-1], xi(z))
 	rbs := braggSlaterBohr(z)
-	var p atomPoints
-	for k, r := range rr {
-		n := spec.Angular[2]
+	shellRule := func(r float64) *angularRule {
 		switch {
 		case r < pruneInner*rbs:
-			n = spec.Angular[0]
+			return rules[spec.Angular[0]]
 		case r < pruneMiddle*rbs:
-			n = spec.Angular[1]
+			return rules[spec.Angular[1]]
 		}
-		ang := rules[n]
+		return rules[spec.Angular[2]]
+	}
+	total := 0
+	for _, r := range rr {
+		total += shellRule(r).n
+	}
+	p := atomPoints{
+		x: make([]float64, 0, total), y: make([]float64, 0, total),
+		z: make([]float64, 0, total), w: make([]float64, 0, total),
+	}
+	for k, r := range rr {
+		ang := shellRule(r)
 		for j := 0; j < ang.n; j++ {
 			u, v, t := ang.x[j], ang.y[j], ang.z[j]
 			p.x = append(p.x, center[0]+r*(u*f[0][0]+v*f[1][0]+t*f[2][0]))
@@ -286,8 +294,8 @@ func atomGrid(z int, center [3]float64, spec LevelSpec, f Frame, rules map[int]*
 
 // splitBatches cuts the points idx of one atom into spatially compact
 // leaves of at most maxBatchPoints points by recursive median bisection
-// along the longest extent of the bounding box. Ties in the sort are broken
-// by index, so the result is deterministic.
+// along the longest extent of the bounding box. Points are ordered by
+// coordinate, then index, a total order, so the result is deterministic.
 func splitBatches(p *atomPoints, idx []int, leaves [][]int) [][]int {
 	if len(idx) == 0 {
 		return leaves
@@ -300,8 +308,13 @@ func splitBatches(p *atomPoints, idx []int, leaves [][]int) [][]int {
 	coord := [3][]float64{p.x, p.y, p.z}
 	for _, k := range idx {
 		for c := 0; c < 3; c++ {
-			lo[c] = math.Min(lo[c], coord[c][k])
-			hi[c] = math.Max(hi[c], coord[c][k])
+			v := coord[c][k]
+			if v < lo[c] {
+				lo[c] = v
+			}
+			if v > hi[c] {
+				hi[c] = v
+			}
 		}
 	}
 	axis := 0
@@ -310,17 +323,8 @@ func splitBatches(p *atomPoints, idx []int, leaves [][]int) [][]int {
 			axis = c
 		}
 	}
-	x := coord[axis]
-	slices.SortFunc(idx, func(a, b int) int {
-		switch {
-		case x[a] < x[b]:
-			return -1
-		case x[a] > x[b]:
-			return 1
-		}
-		return a - b
-	})
 	m := len(idx) / 2
+	selectNth(idx, m, coord[axis])
 	leaves = splitBatches(p, idx[:m], leaves)
 	return splitBatches(p, idx[m:], leaves)
 }
@@ -356,4 +360,49 @@ func parallel(threads, n int, newWorker func() func(int)) {
 	}
 	close(next)
 	wg.Wait()
+}
+
+// selectNth reorders idx so that idx[:m] holds the m points that come first
+// in the order (x[i], i) and idx[m:] the rest (quickselect with a
+// median-of-three pivot).
+func selectNth(idx []int, m int, x []float64) {
+	less := func(a, b int) bool { return x[a] < x[b] || (x[a] == x[b] && a < b) }
+	lo, hi := 0, len(idx)-1
+	for hi > lo {
+		mid := lo + (hi-lo)/2
+		// Median of three into idx[mid].
+		if less(idx[mid], idx[lo]) {
+			idx[mid], idx[lo] = idx[lo], idx[mid]
+		}
+		if less(idx[hi], idx[lo]) {
+			idx[hi], idx[lo] = idx[lo], idx[hi]
+		}
+		if less(idx[hi], idx[mid]) {
+			idx[hi], idx[mid] = idx[mid], idx[hi]
+		}
+		pivot := idx[mid]
+		i, j := lo, hi
+		for i <= j {
+			for less(idx[i], pivot) {
+				i++
+			}
+			for less(pivot, idx[j]) {
+				j--
+			}
+			if i <= j {
+				idx[i], idx[j] = idx[j], idx[i]
+				i++
+				j--
+			}
+		}
+		// Now idx[lo..j] ≤ pivot ≤ idx[i..hi], with j < i.
+		switch {
+		case m <= j:
+			hi = j
+		case m >= i:
+			lo = i
+		default:
+			return
+		}
+	}
 }

@@ -29,7 +29,7 @@ func sphereAverage(a, b, c int) float64 {
 // V. I. Lebedev, D. N. Laikov, Doklady Mathematics 59, 477 (1999)), and that
 // the rules used by the levels are all embedded.
 func TestLebedevRules(t *testing.T) {
-	degree := map[int]int{26: 7, 38: 9, 50: 11, 86: 15, 110: 17, 194: 23, 302: 29, 590: 41, 770: 47, 974: 53}
+	degree := map[int]int{26: 7, 38: 9, 50: 11, 86: 15, 110: 17, 194: 23, 302: 29, 590: 41, 770: 47, 1202: 59}
 	used := map[int]bool{}
 	for _, l := range levels {
 		for _, n := range l.Angular {

@@ -194,3 +194,11 @@ func methane() ([]int, [][3]float64, [][2]int) {
 		[][3]float64{{0, 0, 0}, {s, s, s}, {-s, -s, s}, {-s, s, -s}, {s, -s, -s}},
 		[][2]int{{0, 1}, {0, 2}, {0, 3}, {0, 4}}
 }
+
+// hcn returns HCN with C–H 1.066 Å and C–N 1.153 Å (common practice), in
+// bohr, along z.
+func hcn() ([]int, [][3]float64, [][2]int) {
+	return []int{1, 6, 7},
+		[][3]float64{{0, 0, -1.066 * units.AngstromBohr}, {0, 0, 0}, {0, 0, 1.153 * units.AngstromBohr}},
+		[][2]int{{0, 1}, {1, 2}}
+}

@@ -33,7 +33,7 @@ package integral
 
 import "fmt"
 
-// numAtoms returns the number of atoms the result of a gradient routine
+// derivNumAtoms returns the number of atoms the result of a gradient routine
 // must cover: at least n and 1 + the highest atom index of the shells.
 func (b *Basis) derivNumAtoms(n int) int {
 	for i := range b.Shells {
@@ -44,7 +44,7 @@ func (b *Basis) derivNumAtoms(n int) int {
 	return n
 }
 
-// shiftedShell returns the raw shell data of the derivative companions of
+// derivShiftedShell returns the raw shell data of the derivative companions of
 // s: the raised shell (l+1, coefficients 2α_p c_p) when up is true, else
 // the lowered shell (l−1, coefficients c_p; s must have l ≥ 1). Only the
 // fields the Cartesian block routines read are set.
@@ -126,7 +126,7 @@ func (b *Basis) cartesianDensityBlock(i, j int, d, tmp, out []float64) {
 	}
 }
 
-// contractBraDerivative returns Σ_rc w_rc ∂X_rc/∂A_k (k = x, y, z) for a
+// derivContractBra returns Σ_rc w_rc ∂X_rc/∂A_k (k = x, y, z) for a
 // Cartesian block X = ⟨a|O|b⟩ whose bra shell has momentum la, given the
 // blocks over the raised (up, ncart(la+1)×nb) and lowered (down,
 // ncart(la−1)×nb, unused when la = 0) companions of the bra:
@@ -183,7 +183,7 @@ func (b *Basis) newDerivOneScratch() *derivOneScratch {
 	}
 }
 
-// twoCentreGradient contracts w with the derivatives of a translationally
+// derivTwoCentre contracts w with the derivatives of a translationally
 // invariant two-centre operator whose raw Cartesian blocks block(a, b, out)
 // computes: Σ_μν W_μν ∂O_μν/∂R_A.
 func (b *Basis) derivTwoCentre(w []float64, natoms int, name string,
@@ -217,7 +217,7 @@ func (b *Basis) derivTwoCentre(w []float64, natoms int, name string,
 	return grad
 }
 
-// checkMatrix panics when m is not nbf×nbf: a programming error of the
+// derivCheckMatrix panics when m is not nbf×nbf: a programming error of the
 // caller, not user input.
 func (b *Basis) derivCheckMatrix(m []float64, name string) {
 	if len(m) != b.NBF*b.NBF {

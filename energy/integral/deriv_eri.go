@@ -37,6 +37,7 @@ package integral
 import (
 	"math"
 	"runtime"
+	"sort"
 	"sync"
 	"sync/atomic"
 )
@@ -52,6 +53,11 @@ import (
 // is the usual density-weighted Schwarz screening.
 const derivScreenThreshold = 1e-12
 
+// derivQuartetPrimThreshold skips a primitive quartet when the product
+// of the pair bounds derivPrim.bnd is below it (the energy engine's
+// criterion, with the bounds of the raised shells).
+const derivQuartetPrimThreshold = 1e-15
+
 // derivQuartetsPerChunk is the fixed number of unique shell quartets (in
 // the enumeration order, before screening) that form one unit of parallel
 // work. Chunk results are summed in chunk order, so the gradient does not
@@ -64,6 +70,9 @@ type derivPrim struct {
 	p, pa      [3]float64
 	k          float64 // c_α c_β exp(−αβ/ζ·AB²)/ζ · √2 π^{5/4}, as in eriPrim
 	ta, tb     float64 // 2α, 2β of the first and second shell
+	// bnd bounds the primitive pair's contribution to any derivative
+	// integral together with another pair's bnd (see newDerivPair).
+	bnd float64
 }
 
 // derivPair is a shell pair prepared for derivative integrals, oriented
@@ -119,9 +128,14 @@ func newDerivPair(b *Basis, i, j int) derivPair {
 				continue
 			}
 			pr.k = c * kab / z * pre
+			// As in the energy engine: the Coulomb interaction of two
+			// distributions bounded by Q_p, Q_q is at most
+			// Q_p Q_q (2/π)^{1/2}(ζη)^{1/4}.
+			pr.bnd = bound * math.Pow(2/math.Pi, 0.25) * math.Pow(z, 0.25)
 			p.prims = append(p.prims, pr)
 		}
 	}
+	sort.SliceStable(p.prims, func(x, y int) bool { return p.prims[x].bnd > p.prims[y].bnd })
 	return p
 }
 
@@ -175,6 +189,17 @@ func (d *eriDeriv) pair(i, j int) *derivPair {
 	return &d.pairs[i*(i+1)/2+j]
 }
 
+// derivVRRSize is the storage derivVRR needs for |e| ≤ lab1, ket levels
+// up to lcd1.
+func derivVRRSize(lab1, lcd1 int) int {
+	ne := eriCum(lab1 + 1)
+	n := ne * (lab1 + lcd1 + 1)
+	for k := 1; k <= lcd1; k++ {
+		n += ne * basisNCart(k) * (lcd1 - k + 1)
+	}
+	return n
+}
+
 // derivWork is the scratch memory of one goroutine.
 type derivWork struct {
 	w               *ERIWorkspace // recursion buffers, sized for momenta up to maxL+1
@@ -183,12 +208,15 @@ type derivWork struct {
 	up, down        [3][]float64 // Cartesian raised / lowered classes for centres A, B, C
 	gam, gtmp       []float64    // two-particle density, final then Cartesian
 	vrrOff          [eriMaxTab + 3]int
+	eLo             [eriMaxTab + 3]int
+	batch           derivBatch
+	prim            [][2]int32 // surviving primitive quartets of the current quartet
 }
 
 func (d *eriDeriv) newWork() *derivWork {
 	L := d.maxL
 	w := &ERIWorkspace{}
-	w.vrr = make([]float64, eriVRRSize(2*L+1, 2*L+1))
+	w.vrr = make([]float64, max(derivBatchFloats, derivVRRSize(2*L+1, 2*L+1)))
 	w.acc = make([]float64, 1) // unused; non-empty for eriHRRKet's identity test
 	nh := 0
 	for la := 0; la <= L+1; la++ {
@@ -223,47 +251,220 @@ func (d *eriDeriv) newWork() *derivWork {
 	return dw
 }
 
-// accumulate adds wt·[e0|f0]⁽⁰⁾ for |e| ∈ [eLo, eHi], |f| ∈ [fLo, fHi]
-// from the vertical-recursion storage V (ket levels at off, lcd1 the top
-// ket level, L the total order) to acc laid out [e][f] over those ranges.
-func derivAccumulate(acc, V []float64, off []int, eLo, eHi, fLo, fHi, lcd1, L int, wt float64) {
-	nf := eriCum(fHi+1) - eriCum(fLo)
-	e0, e1 := eriCum(eLo), eriCum(eHi+1)
-	for k := fLo; k <= fHi; k++ {
-		nfk := basisNCart(k)
-		nmk := lcd1 - k + 1
-		if k == 0 {
-			nmk = L + 1
+// derivBatchFloats is the size (in float64) of the vertical-recursion
+// storage per goroutine: a batch of primitive quartets is as large as fits
+// (at least one).
+const derivBatchFloats = 1 << 16
+
+// derivBatch holds the recursion coefficients of a batch of primitive
+// quartets, one vector entry per primitive quartet.
+type derivBatch struct {
+	pa, wp, qc, wq            [3][]float64
+	oo2z, oo2e, rz, re, oo2zn []float64
+	wA, wB, wC                []float64 // 2α, 2β, 2γ
+	F                         []float64 // pref·F_m(T), [m][x]
+	boys                      [eriMaxM + 1]float64
+}
+
+func (bt *derivBatch) ensure(n, nm int) {
+	if len(bt.oo2z) >= n && len(bt.F) >= n*nm {
+		return
+	}
+	n = max(n, len(bt.oo2z))
+	mk := func() []float64 { return make([]float64, n) }
+	for i := 0; i < 3; i++ {
+		bt.pa[i], bt.wp[i], bt.qc[i], bt.wq[i] = mk(), mk(), mk(), mk()
+	}
+	bt.oo2z, bt.oo2e, bt.rz, bt.re, bt.oo2zn = mk(), mk(), mk(), mk(), mk()
+	bt.wA, bt.wB, bt.wC = mk(), mk(), mk()
+	bt.F = make([]float64, n*(eriMaxM+1))
+}
+
+// fill computes the coefficients of the primitive quartets list[0:nb]
+// (bra primitive, ket primitive).
+func (bt *derivBatch) fill(bra, ket *derivPair, list [][2]int32, Lm int) {
+	nb := len(list)
+	for x, pq := range list {
+		p := &bra.prims[pq[0]]
+		q := &ket.prims[pq[1]]
+		zn := p.zeta + q.zeta
+		ozn := 1 / zn
+		rho := p.zeta * q.zeta * ozn
+		pq := [3]float64{p.p[0] - q.p[0], p.p[1] - q.p[1], p.p[2] - q.p[2]}
+		t := rho * (pq[0]*pq[0] + pq[1]*pq[1] + pq[2]*pq[2])
+		pref := p.k * q.k * math.Sqrt(ozn)
+		Boys(Lm, t, bt.boys[:])
+		for m := 0; m <= Lm; m++ {
+			bt.F[m*nb+x] = bt.boys[m] * pref
 		}
-		fRel := eriCum(k) - eriCum(fLo)
-		lv := V[off[k]:]
-		for n := e0; n < e1; n++ {
-			a := acc[(n-e0)*nf+fRel : (n-e0)*nf+fRel+nfk]
-			src := lv[n*nfk*nmk:]
-			for fc := range a {
-				a[fc] += wt * src[fc*nmk]
+		rz := q.zeta * ozn
+		re := p.zeta * ozn
+		for i := 0; i < 3; i++ {
+			bt.pa[i][x] = p.pa[i]
+			bt.qc[i][x] = q.pa[i]
+			bt.wp[i][x] = -rz * pq[i]
+			bt.wq[i][x] = re * pq[i]
+		}
+		bt.oo2z[x], bt.oo2e[x] = p.oo2z, q.oo2z
+		bt.rz[x], bt.re[x] = rz, re
+		bt.oo2zn[x] = 0.5 * ozn
+		bt.wA[x], bt.wB[x], bt.wC[x] = p.ta, p.tb, q.ta
+	}
+}
+
+// derivVRR runs the vertical recursion (Obara & Saika 1986, eq. (39))
+// for a batch of nb primitive quartets at once, every value a vector over
+// the batch (innermost index), and leaves [e|f]⁽ᵐ⁾ in V: ket level k from
+// offset off[k]·nb as [f component][m][e][batch] (e over the cumulative
+// components 0 … neAll−1); level 0 is [m][e][batch] with m ≤ Lm. Only the
+// entries needed are formed: |e| ≤ lab1, ket levels up to lcd1, |e| ≥
+// eLo[k] at level k, and |e| = lab1 only for m < lcd1−k (no class needs
+// |e| = lab1 together with |f| = lcd1).
+func derivVRR(V []float64, off, eLo []int, lab1, lcd1, Lm, neAll, nb int, bt *derivBatch) {
+	for m := 0; m <= Lm; m++ {
+		copy(V[m*neAll*nb:m*neAll*nb+nb], bt.F[m*nb:m*nb+nb])
+	}
+	vec := func(idx int) []float64 { return V[idx*nb : idx*nb+nb] }
+	for n := 1; n < neAll; n++ {
+		t := &eriCartTab[n]
+		i := t.dir
+		mmax := Lm - int(t.level)
+		n1 := int(t.minus[i])
+		pa, wp := bt.pa[i][:nb], bt.wp[i][:nb]
+		if k := t.n[i] - 1; k > 0 {
+			n2 := int(eriCartTab[n1].minus[i])
+			c1 := float64(k)
+			oo2z, rz := bt.oo2z[:nb], bt.rz[:nb]
+			for m := 0; m <= mmax; m++ {
+				dst, s1, s1p := vec(m*neAll+n), vec(m*neAll+n1), vec((m+1)*neAll+n1)
+				s2, s2p := vec(m*neAll+n2), vec((m+1)*neAll+n2)
+				for x := range dst {
+					dst[x] = pa[x]*s1[x] + wp[x]*s1p[x] + c1*oo2z[x]*(s2[x]-rz[x]*s2p[x])
+				}
+			}
+		} else {
+			for m := 0; m <= mmax; m++ {
+				dst, s1, s1p := vec(m*neAll+n), vec(m*neAll+n1), vec((m+1)*neAll+n1)
+				for x := range dst {
+					dst[x] = pa[x]*s1[x] + wp[x]*s1p[x]
+				}
+			}
+		}
+	}
+	endFull, endTop := eriCum(lab1+1), eriCum(lab1)
+	oo2e, re, oo2zn := bt.oo2e[:nb], bt.re[:nb], bt.oo2zn[:nb]
+	for k := 1; k <= lcd1; k++ {
+		nmk := lcd1 - k + 1
+		nm1 := nmk + 1
+		if k == 1 {
+			nm1 = Lm + 1
+		}
+		nm2 := nmk + 2
+		if k == 2 {
+			nm2 = Lm + 1
+		}
+		c0, c1, c2 := eriCum(k), eriCum(k-1), eriCum(k-2)
+		e0 := eriCum(eLo[k])
+		for fc := 0; fc < basisNCart(k); fc++ {
+			t := &eriCartTab[c0+fc]
+			i := t.dir
+			l1 := off[k-1] + (int(t.minus[i])-c1)*nm1*neAll
+			kf := int(t.n[i]) - 1
+			l2 := -1
+			if kf > 0 {
+				l2 = off[k-2] + (int(eriCartTab[t.minus[i]].minus[i])-c2)*nm2*neAll
+			}
+			a := float64(kf)
+			qc, wq := bt.qc[i][:nb], bt.wq[i][:nb]
+			for m := 0; m < nmk; m++ {
+				e1 := endTop
+				if m < nmk-1 {
+					e1 = endFull
+				}
+				base := off[k] + (fc*nmk+m)*neAll
+				for n := e0; n < e1; n++ {
+					dst := vec(base + n)
+					s1, s1p := vec(l1+m*neAll+n), vec(l1+(m+1)*neAll+n)
+					if l2 >= 0 {
+						s2, s2p := vec(l2+m*neAll+n), vec(l2+(m+1)*neAll+n)
+						for x := range dst {
+							dst[x] = qc[x]*s1[x] + wq[x]*s1p[x] + a*oo2e[x]*(s2[x]-re[x]*s2p[x])
+						}
+					} else {
+						for x := range dst {
+							dst[x] = qc[x]*s1[x] + wq[x]*s1p[x]
+						}
+					}
+					te := &eriCartTab[n]
+					if ni := te.n[i]; ni > 0 {
+						s3p := vec(l1 + (m+1)*neAll + int(te.minus[i]))
+						fn := float64(ni)
+						for x := range dst {
+							dst[x] += fn * oo2zn[x] * s3p[x]
+						}
+					}
+				}
 			}
 		}
 	}
 }
 
-// extract copies the part |e| ∈ [eLo, eHi], |f| ∈ [fLo, fHi] of src (laid
-// out [e][f] over |e| ≥ sE, |f| ∈ [sF, sFHi]) to dst, laid out over the
-// smaller ranges.
-func derivExtract(dst, src []float64, sE, sF, sFHi, eLo, eHi, fLo, fHi int) []float64 {
-	nfs := eriCum(sFHi+1) - eriCum(sF)
-	nfd := eriCum(fHi+1) - eriCum(fLo)
-	fo := eriCum(fLo) - eriCum(sF)
+// derivAccumulate adds Σ_x w_x·[e|f]⁽⁰⁾_x over the batch for |e| ∈ [eLo,
+// eHi], |f| ∈ [fLo, fHi] to acc laid out [f][e] over those ranges, for the
+// weight vectors ws paired with the accumulators accs (nil weight: 1).
+func derivAccumulate(accs [3][]float64, ws [3][]float64, nacc int, V []float64, off []int, eLo, eHi, fLo, fHi, lcd1, Lm, neAll, nb int) {
 	e0, e1 := eriCum(eLo), eriCum(eHi+1)
-	for n := e0; n < e1; n++ {
-		s := (n - eriCum(sE)) * nfs
-		copy(dst[(n-e0)*nfd:(n-e0+1)*nfd], src[s+fo:s+fo+nfd])
+	ne := e1 - e0
+	row := 0
+	for k := fLo; k <= fHi; k++ {
+		nmk := lcd1 - k + 1
+		if k == 0 {
+			nmk = Lm + 1
+		}
+		for fc := 0; fc < basisNCart(k); fc++ {
+			for n := e0; n < e1; n++ {
+				idx := off[k] + fc*nmk*neAll + n
+				v := V[idx*nb : idx*nb+nb]
+				for a := 0; a < nacc; a++ {
+					var s float64
+					if w := ws[a]; w != nil {
+						w = w[:nb]
+						for x, y := range v {
+							s += w[x] * y
+						}
+					} else {
+						for _, y := range v {
+							s += y
+						}
+					}
+					accs[a][row*ne+n-e0] += s
+				}
+			}
+			row++
+		}
+	}
+}
+
+// derivExtract copies the part |e| ∈ [eLo, eHi], |f| ∈ [fLo, fHi] of src
+// (laid out [f][e] over |f| ≥ sF, |e| ∈ [sE, sEHi]) to dst laid out [e][f]
+// over the smaller ranges, as the horizontal recursion takes it.
+func derivExtract(dst, src []float64, sE, sEHi, sF, eLo, eHi, fLo, fHi int) []float64 {
+	nes := eriCum(sEHi+1) - eriCum(sE)
+	nfd := eriCum(fHi+1) - eriCum(fLo)
+	e0, e1 := eriCum(eLo), eriCum(eHi+1)
+	eo := e0 - eriCum(sE)
+	fo := eriCum(fLo) - eriCum(sF)
+	for f := 0; f < nfd; f++ {
+		s := src[(fo+f)*nes+eo:]
+		for e := 0; e < e1-e0; e++ {
+			dst[e*nfd+f] = s[e]
+		}
 	}
 	return dst[:(e1-e0)*nfd]
 }
 
-// hrr turns contracted [e0|f0] (e ∈ [la, la+lb], f ∈ [lc, lc+ld]) into the
-// Cartesian class (ab|cd) and copies it to dst.
+// derivHRR turns contracted [e0|f0] (e ∈ [la, la+lb], f ∈ [lc, lc+ld],
+// laid out [e][f]) into the Cartesian class (ab|cd) and copies it to dst.
 func derivHRR(w *ERIWorkspace, acc []float64, la, lb, lc, ld int, ab, cd [3]float64, dst []float64) {
 	nf := eriCum(lc+ld+1) - eriCum(lc)
 	g := eriHRRBra(w, acc, la, lb, nf, ab)
@@ -278,11 +479,11 @@ func (d *eriDeriv) cartesianDeriv(dw *derivWork, bra, ket *derivPair) {
 	la, lb, lc, ld := bra.la, bra.lb, ket.la, ket.lb
 	lab, lcd := la+lb, lc+ld
 	lab1, lcd1 := lab+1, lcd+1
-	L := lab1 + lcd1
+	Lm := lab + lcd + 1 // highest Boys order
 	e0, f0 := max(la-1, 0), max(lc-1, 0)
 	nT := (eriCum(lab1+1) - eriCum(e0)) * (eriCum(lcd+1) - eriCum(f0))
 	nC := (eriCum(lab+1) - eriCum(la)) * (eriCum(lcd1+1) - eriCum(lc+1))
-	tp, acc0, accA, accB := dw.tp[:nT], dw.acc0[:nT], dw.accA[:nT], dw.accB[:nT]
+	acc0, accA, accB := dw.acc0[:nT], dw.accA[:nT], dw.accB[:nT]
 	accC := dw.accC[:nC]
 	clear(acc0)
 	clear(accA)
@@ -291,74 +492,66 @@ func (d *eriDeriv) cartesianDeriv(dw *derivWork, bra, ket *derivPair) {
 
 	neAll := eriCum(lab1 + 1)
 	off := dw.vrrOff[:]
+	eLo := dw.eLo[:]
 	off[0] = 0
-	off[1] = neAll * (L + 1)
+	off[1] = neAll * (Lm + 1)
 	for k := 1; k <= lcd1; k++ {
 		off[k+1] = off[k] + neAll*basisNCart(k)*(lcd1-k+1)
+		// Level k feeds |e| ≥ e0 at levels ≤ lcd and |e| ≥ la at lcd1.
+		eLo[k] = max(0, min(la-(lcd1-k), e0-(lcd-k)))
 	}
+	entries := off[lcd1+1]
+	// Primitive quartets that survive screening; the pair lists are sorted
+	// by decreasing bound, so each inner loop stops at the first failure.
+	list := dw.prim[:0]
+	for p := range bra.prims {
+		bp := bra.prims[p].bnd
+		if len(ket.prims) == 0 || bp*ket.prims[0].bnd < derivQuartetPrimThreshold {
+			break
+		}
+		for q := range ket.prims {
+			if bp*ket.prims[q].bnd < derivQuartetPrimThreshold {
+				break
+			}
+			list = append(list, [2]int32{int32(p), int32(q)})
+		}
+	}
+	dw.prim = list
+	np := len(list)
+	batch := min(np, max(1, len(dw.w.vrr)/entries))
+	bt := &dw.batch
+	bt.ensure(batch, Lm+1)
 	V := dw.w.vrr
-	F := dw.w.boys[:L+1]
-	for pi := range bra.prims {
-		p := &bra.prims[pi]
-		clear(tp)
-		for qi := range ket.prims {
-			q := &ket.prims[qi]
-			zn := p.zeta + q.zeta
-			ozn := 1 / zn
-			rho := p.zeta * q.zeta * ozn
-			pq := [3]float64{p.p[0] - q.p[0], p.p[1] - q.p[1], p.p[2] - q.p[2]}
-			t := rho * (pq[0]*pq[0] + pq[1]*pq[1] + pq[2]*pq[2])
-			pref := p.k * q.k * math.Sqrt(ozn)
-			Boys(L, t, F)
-			rz := q.zeta * ozn
-			re := p.zeta * ozn
-			c := vrrCoef{
-				pa:    p.pa,
-				qc:    q.pa,
-				wp:    [3]float64{-rz * pq[0], -rz * pq[1], -rz * pq[2]},
-				wq:    [3]float64{re * pq[0], re * pq[1], re * pq[2]},
-				oo2z:  p.oo2z,
-				oo2e:  q.oo2z,
-				rz:    rz,
-				re:    re,
-				oo2zn: 0.5 * ozn,
-			}
-			for m := 0; m <= L; m++ {
-				V[m] = F[m] * pref
-			}
-			eriVRRBra(V, lab1, L, &c)
-			for k := 1; k <= lcd1; k++ {
-				// Level k feeds |e| ≥ e0 at levels ≤ lcd and |e| ≥ la at lcd1.
-				eLo := max(0, min(la-(lcd1-k), e0-(lcd-k)))
-				eriVRRKet(V, off, k, eLo, neAll, lcd1, L, &c)
-			}
-			derivAccumulate(tp, V, off, e0, lab1, f0, lcd, lcd1, L, 1)
-			derivAccumulate(accC, V, off, la, lab, lc+1, lcd1, lcd1, L, q.ta)
-		}
-		for i, v := range tp {
-			acc0[i] += v
-			accA[i] += p.ta * v
-			accB[i] += p.tb * v
-		}
+	bt3 := [3][]float64{acc0, accA, accB}
+	wt3 := [3][]float64{nil, bt.wA, bt.wB}
+	c1 := [3][]float64{accC}
+	wc1 := [3][]float64{bt.wC}
+	for g0 := 0; g0 < np; g0 += batch {
+		nb := min(batch, np-g0)
+		bt.fill(bra, ket, list[g0:g0+nb], Lm)
+		derivVRR(V, off, eLo, lab1, lcd1, Lm, neAll, nb, bt)
+		derivAccumulate(bt3, wt3, 3, V, off, e0, lab1, f0, lcd, lcd1, Lm, neAll, nb)
+		derivAccumulate(c1, wc1, 1, V, off, la, lab, lc+1, lcd1, lcd1, Lm, neAll, nb)
 	}
 	w := dw.w
+	sub := dw.sub
 	// Raised classes.
-	derivHRR(w, derivExtract(dw.sub, accA, e0, f0, lcd, la+1, lab1, lc, lcd), la+1, lb, lc, ld, bra.ab, ket.ab, dw.up[0])
-	derivHRR(w, derivExtract(dw.sub, accB, e0, f0, lcd, la, lab1, lc, lcd), la, lb+1, lc, ld, bra.ab, ket.ab, dw.up[1])
-	derivHRR(w, accC, la, lb, lc+1, ld, bra.ab, ket.ab, dw.up[2])
+	derivHRR(w, derivExtract(sub, accA, e0, lab1, f0, la+1, lab1, lc, lcd), la+1, lb, lc, ld, bra.ab, ket.ab, dw.up[0])
+	derivHRR(w, derivExtract(sub, accB, e0, lab1, f0, la, lab1, lc, lcd), la, lb+1, lc, ld, bra.ab, ket.ab, dw.up[1])
+	derivHRR(w, derivExtract(sub, accC, la, lab, lc+1, la, lab, lc+1, lcd1), la, lb, lc+1, ld, bra.ab, ket.ab, dw.up[2])
 	// Lowered classes.
 	if la > 0 {
-		derivHRR(w, derivExtract(dw.sub, acc0, e0, f0, lcd, la-1, lab-1, lc, lcd), la-1, lb, lc, ld, bra.ab, ket.ab, dw.down[0])
+		derivHRR(w, derivExtract(sub, acc0, e0, lab1, f0, la-1, lab-1, lc, lcd), la-1, lb, lc, ld, bra.ab, ket.ab, dw.down[0])
 	}
 	if lb > 0 {
-		derivHRR(w, derivExtract(dw.sub, acc0, e0, f0, lcd, la, lab-1, lc, lcd), la, lb-1, lc, ld, bra.ab, ket.ab, dw.down[1])
+		derivHRR(w, derivExtract(sub, acc0, e0, lab1, f0, la, lab-1, lc, lcd), la, lb-1, lc, ld, bra.ab, ket.ab, dw.down[1])
 	}
 	if lc > 0 {
-		derivHRR(w, derivExtract(dw.sub, acc0, e0, f0, lcd, la, lab, lc-1, lcd-1), la, lb, lc-1, ld, bra.ab, ket.ab, dw.down[2])
+		derivHRR(w, derivExtract(sub, acc0, e0, lab1, f0, la, lab, lc-1, lcd-1), la, lb, lc-1, ld, bra.ab, ket.ab, dw.down[2])
 	}
 }
 
-// contractCentre returns Σ Γ[p][r][q]·(up[p][r+1_k][q] − r_k·down[p][r−1_k][q])
+// derivContractCentre returns Σ Γ[p][r][q]·(up[p][r+1_k][q] − r_k·down[p][r−1_k][q])
 // for k = x, y, z: the derivative with respect to the centre of the middle
 // index (momentum l) of the Cartesian quartet block Γ viewed as
 // [pre][ncart(l)][post].

@@ -19,20 +19,26 @@ func derivLibintShell(s basis.Shell) libintref.Shell {
 	return libintref.Shell{L: s.L, Pure: s.Pure, Center: s.Center, Exponents: s.Exponents, Coefficients: s.Coefficients}
 }
 
-func derivLibintCompare(t *testing.T, what string, got, want []float64) {
+// derivLibintCompare checks got against want and returns the largest
+// scaled deviation |got − want|/max(1, |want|).
+func derivLibintCompare(t *testing.T, what string, got, want []float64) float64 {
 	t.Helper()
+	var worst float64
 	if len(got) != len(want) {
 		t.Fatalf("%s: %d values, reference %d", what, len(got), len(want))
 	}
 	bad := 0
 	for x := range want {
-		if d := math.Abs(got[x] - want[x]); d > 1e-11*math.Max(1, math.Abs(want[x])) || math.IsNaN(got[x]) {
+		d := math.Abs(got[x] - want[x])
+		worst = math.Max(worst, d/math.Max(1, math.Abs(want[x])))
+		if d > 1e-11*math.Max(1, math.Abs(want[x])) || math.IsNaN(got[x]) {
 			if bad < 3 {
 				t.Errorf("%s: element %d: %.15g, libint2 %.15g (diff %.2g)", what, x, got[x], want[x], d)
 			}
 			bad++
 		}
 	}
+	return worst
 }
 
 // TestLibintERIDerivatives compares ∂(ab|cd)/∂R for all four centres with
@@ -48,6 +54,7 @@ func TestLibintERIDerivatives(t *testing.T) {
 	for n := 0; n < 12; n++ {
 		combos = append(combos, [4]int{rng.IntN(4), rng.IntN(4), rng.IntN(4), rng.IntN(4)})
 	}
+	var worst, largest float64
 	for ci, ls := range combos {
 		for _, pure := range []bool{false, true} {
 			var shells []basis.Shell
@@ -66,11 +73,15 @@ func TestLibintERIDerivatives(t *testing.T) {
 				t.Fatal(err)
 			}
 			for s := 0; s < 12; s++ {
-				derivLibintCompare(t, "ERI deriv l="+string(rune('0'+ls[0]))+string(rune('0'+ls[1]))+string(rune('0'+ls[2]))+string(rune('0'+ls[3]))+
-					map[bool]string{false: " cart", true: " pure"}[pure]+" set "+string(rune('a'+s)), got[s], ref[s])
+				for _, v := range ref[s] {
+					largest = math.Max(largest, math.Abs(v))
+				}
+				worst = math.Max(worst, derivLibintCompare(t, "ERI deriv l="+string(rune('0'+ls[0]))+string(rune('0'+ls[1]))+string(rune('0'+ls[2]))+string(rune('0'+ls[3]))+
+					map[bool]string{false: " cart", true: " pure"}[pure]+" set "+string(rune('a'+s)), got[s], ref[s]))
 			}
 		}
 	}
+	t.Logf("largest |derivative integral| %.3g, largest scaled deviation from libint2 %.2g", largest, worst)
 }
 
 // TestLibintOneBodyDerivatives checks the one-electron derivative
@@ -86,6 +97,7 @@ func TestLibintOneBodyDerivatives(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 6))
 	charges := []float64{8, 1, 2.5}
 	centers := [][3]float64{{0.1, -0.2, 0.3}, {1.2, 0.4, -0.5}, {-0.7, 1.1, 0.9}}
+	var worst float64
 	for la := 0; la <= 4; la++ {
 		for lb := 0; lb <= 4; lb++ {
 			var shells []basis.Shell
@@ -101,11 +113,12 @@ func TestLibintOneBodyDerivatives(t *testing.T) {
 				got := derivOneBodyBlocks(b, op, 0, 1, charges, centers)
 				ref := derivOneBodyReference(t, op, shells[0], shells[1], charges, centers)
 				for s := range ref {
-					derivLibintCompare(t, op+" l="+string(rune('0'+la))+string(rune('0'+lb))+" set "+string(rune('a'+s)), got[s], ref[s])
+					worst = math.Max(worst, derivLibintCompare(t, op+" l="+string(rune('0'+la))+string(rune('0'+lb))+" set "+string(rune('a'+s)), got[s], ref[s]))
 				}
 			}
 		}
 	}
+	t.Logf("largest scaled deviation from the libint2-based reference %.2g", worst)
 }
 
 // derivOneBodyReference returns the libint2 reference sets (see

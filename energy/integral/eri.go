@@ -21,6 +21,8 @@ package integral
 // straight-line code written by internal/gen (eri_gen.go), all others the
 // table-driven code in eri_generic.go.
 
+//go:generate go run ./internal/gen -o eri_gen.go
+
 import (
 	"math"
 	"runtime"
@@ -58,8 +60,8 @@ type eriPair struct {
 	a, b   int // shell indices; shell a has the higher angular momentum
 	la, lb int
 	ab     [3]float64 // A − B
-	prims  []eriPrim // sorted by decreasing bnd
-	maxBnd float64   // prims[0].bnd, 0 without primitives
+	prims  []eriPrim  // sorted by decreasing bnd
+	maxBnd float64    // prims[0].bnd, 0 without primitives
 }
 
 // eriQuartetThreshold skips a primitive quartet when the product of the
@@ -400,7 +402,6 @@ func (e *ERIEngine) finish(w *ERIWorkspace, cart []float64, sh, pos [4]int) []fl
 	rs[2] = dims[3]
 	rs[1] = dims[2] * dims[3]
 	rs[0] = dims[1] * dims[2] * dims[3]
-	sA, sB, sC, sD := rs[pos[0]], rs[pos[1]], rs[pos[2]], rs[pos[3]]
 	out := w.out[:total]
 	if &src[0] == &out[0] {
 		out = w.h1[:total]
@@ -408,23 +409,83 @@ func (e *ERIEngine) finish(w *ERIWorkspace, cart []float64, sh, pos [4]int) []fl
 			out = w.h2[:total]
 		}
 	}
-	scA, scB, scC, scD := eriScale(in[0], n[0]), eriScale(in[1], n[1]), eriScale(in[2], n[2]), eriScale(in[3], n[3])
+	// Collapse the axes of length 1 (s shells, whose factor is 1) and
+	// scatter over the others.
+	var ax [4]eriAxis
+	k := 0
+	srcStride := total
+	for x := 0; x < 4; x++ {
+		srcStride /= n[x]
+		if n[x] == 1 {
+			continue
+		}
+		ax[k] = eriAxis{n: n[x], src: srcStride, out: rs[pos[x]], scale: eriScale(in[x], n[x])}
+		k++
+	}
+	switch k {
+	case 0:
+		out[0] = src[0]
+	case 1:
+		eriScatter1(out, src, &ax[0])
+	case 2:
+		eriScatter2(out, src, &ax[0], &ax[1])
+	default:
+		eriScatter(out, src[:total], eriScale(in[0], n[0]), eriScale(in[1], n[1]), eriScale(in[2], n[2]), eriScale(in[3], n[3]),
+			rs[pos[0]], rs[pos[1]], rs[pos[2]], rs[pos[3]])
+	}
+	return out
+}
+
+// eriAxis is one index of a quartet of integrals during the final scatter.
+type eriAxis struct {
+	n, src, out int       // length, stride in the source, stride in the output
+	scale       []float64 // per-component factor, length n
+}
+
+func eriScatter1(out, src []float64, a *eriAxis) {
+	for i, f := range a.scale[:a.n] {
+		out[i*a.out] = src[i*a.src] * f
+	}
+}
+
+func eriScatter2(out, src []float64, a, b *eriAxis) {
+	sb := b.scale[:b.n]
+	for i, fa := range a.scale[:a.n] {
+		so, oo := i*a.src, i*a.out
+		for j, fb := range sb {
+			out[oo+j*b.out] = src[so+j*b.src] * fa * fb
+		}
+	}
+}
+
+// eriScatter writes out[a·sA+b·sB+c·sC+d·sD] = src[a][b][c][d]·sa[a]·sb[b]·sc[c]·sd[d].
+func eriScatter(out, src, sa, sb, sc, sd []float64, sA, sB, sC, sD int) {
+	nd := len(sd)
 	idx := 0
-	for a := 0; a < n[0]; a++ {
-		fa := scA[a]
-		for b := 0; b < n[1]; b++ {
-			fab := fa * scB[b]
-			for c := 0; c < n[2]; c++ {
-				fabc := fab * scC[c]
-				o := a*sA + b*sB + c*sC
-				for d := 0; d < n[3]; d++ {
-					out[o+d*sD] = src[idx] * fabc * scD[d]
-					idx++
+	for a, fa := range sa {
+		oa := a * sA
+		for b, fb := range sb {
+			fab := fa * fb
+			oab := oa + b*sB
+			for c, fc := range sc {
+				fabc := fab * fc
+				o := oab + c*sC
+				row := src[idx : idx+nd]
+				idx += nd
+				if sD == 1 {
+					dst := out[o : o+nd]
+					for d, x := range row {
+						dst[d] = x * fabc * sd[d]
+					}
+					continue
+				}
+				for d, x := range row {
+					out[o] = x * fabc * sd[d]
+					o += sD
 				}
 			}
 		}
 	}
-	return out
 }
 
 // eriScale returns the diagonal scale of a shell's n current components

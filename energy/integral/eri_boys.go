@@ -16,8 +16,8 @@ import "math"
 // for m ≤ eriBoysMaxM at t = 60 (checked by TestERIBoysInline).
 
 const (
-	eriBoysMaxM    = 8    // highest order tabulated (four d shells)
-	eriBoysTerms   = 8    // Taylor terms per order
+	eriBoysMaxM    = 8 // highest order tabulated (four d shells)
+	eriBoysTerms   = 8 // Taylor terms per order
 	eriBoysRow     = (eriBoysMaxM + 1) * eriBoysTerms
 	eriBoysStep    = 0.1  // grid spacing h
 	eriBoysInvStep = 10.0 // 1/h

@@ -140,7 +140,7 @@ func (e *ERIEngine) generic(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 // vrrCoef holds the per-primitive-quartet coefficients of the vertical
 // recursion.
 type vrrCoef struct {
-	pa, qc, wp, wq             [3]float64
+	pa, qc, wp, wq            [3]float64
 	oo2z, oo2e, rz, re, oo2zn float64
 }
 

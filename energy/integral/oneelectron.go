@@ -5,10 +5,8 @@ import "math"
 // One-electron integrals by the Obara–Saika recurrences (S. Obara and
 // A. Saika, J. Chem. Phys. 84, 3963 (1986)). Overlap, kinetic energy and
 // dipole integrals factor into one-dimensional overlaps; the nuclear
-// attraction uses the vertical recurrence on the bra with auxiliary orders
-// m (their eq. A20) followed by the horizontal transfer
-// (a|b+1_i) = (a+1_i|b) + (A−B)_i (a|b) on contracted integrals
-// (M. Head-Gordon and J. A. Pople, J. Chem. Phys. 89, 5777 (1988)).
+// attraction uses their two-centre vertical recurrence with auxiliary
+// orders m (eq. A20) over the Boys function.
 //
 // Results are full symmetric nbf×nbf row-major matrices over the final
 // basis functions (spherical or Cartesian as each shell says). One-electron
@@ -154,10 +152,8 @@ type oneWork struct {
 	dim  int          // leading dimension of the 1D tables: maxL+3
 	s1d  [3][]float64 // 1D overlaps S_ij per direction, index i*dim+j
 	// nuclear attraction
-	boys []float64   // F_m, m ≤ 2·maxL
-	aux  [][]float64 // aux[m][global component index]
-	acc  []float64   // contracted (e|0), global component index
-	hrr  [2][]float64
+	boys  []float64 // F_m, m ≤ 2·maxL
+	theta []float64 // Θ^(m)(a|b), see nuclearVRR
 }
 
 func newOneWork(maxL int) *oneWork {
@@ -167,15 +163,8 @@ func newOneWork(maxL int) *oneWork {
 	}
 	lt := 2 * maxL
 	w.boys = make([]float64, lt+1)
-	w.aux = make([][]float64, lt+1)
-	for m := range w.aux {
-		w.aux[m] = make([]float64, numComponentsUpTo(lt))
-	}
-	w.acc = make([]float64, numComponentsUpTo(lt))
-	nc := len(cartesianExponents(maxL))
-	for k := range w.hrr {
-		w.hrr[k] = make([]float64, numComponentsUpTo(lt)*nc)
-	}
+	n := numComponentsUpTo(maxL)
+	w.theta = make([]float64, n*n*(lt+1))
 	return w
 }
 
@@ -358,31 +347,30 @@ func (w *oneWork) dipoleBlock(a, b *shellData, origin [3]float64, out [3][]float
 }
 
 // nuclearBlock writes the contracted Cartesian block
-// −Σ_C Z_C ⟨a| 1/|r−C| |b⟩.
+// −Σ_C Z_C ⟨a| 1/|r−C| |b⟩ (ncart_a×ncart_b, axially normalized
+// components). Only l, center, exps, coefs and ncart of a and b are read.
+//
+// The auxiliary integrals Θ^(m)(a|b) are built per primitive pair and
+// charge by the two-centre vertical recurrence of Obara & Saika (1986),
+// eq. A20, on the bra and then on the ket, without a horizontal transfer:
+// a transfer on contracted integrals must start from a single centre for
+// every primitive pair, and when that centre holds the diffuse function
+// far from a tight partner the intermediate (e|0) grow like |A−B|^{la+lb}
+// and the transfer cancels them (losing up to 1e−9 relative for h
+// functions 4 bohr apart), whereas P−A and P−B stay small here.
 func (w *oneWork) nuclearBlock(a, b *shellData, charges []float64, centers [][3]float64, out []float64) {
-	if a.l < b.l {
-		// The horizontal transfer is cheapest towards the lower momentum:
-		// compute ⟨b|V|a⟩ and transpose.
-		na, nb := a.ncart, b.ncart
-		w.nuclearBlock(b, a, charges, centers, out)
-		tr := w.hrr[0][:na*nb]
-		copy(tr, out[:na*nb])
-		for r := 0; r < na; r++ {
-			for c := 0; c < nb; c++ {
-				out[r*nb+c] = tr[c*na+r]
-			}
-		}
-		return
-	}
 	la, lb := a.l, b.l
 	lt := la + lb
-	lo := numComponentsUpTo(la - 1) // first global index with |e| = la
-	hi := numComponentsUpTo(lt)
-	acc := w.acc[:hi]
-	for i := range acc {
-		acc[i] = 0
+	M := lt + 1
+	nA, nB := numComponentsUpTo(la), numComponentsUpTo(lb)
+	loA, loB := numComponentsUpTo(la-1), numComponentsUpTo(lb-1)
+	na, nb := a.ncart, b.ncart
+	out = out[:na*nb]
+	for i := range out {
+		out[i] = 0
 	}
-	boys := w.boys[:lt+1]
+	th := w.theta[:nA*nB*M]
+	boys := w.boys[:M]
 	for pi, alpha := range a.exps {
 		for qi, beta := range b.exps {
 			q := makePrimitivePair(alpha, beta, a.center, b.center)
@@ -396,119 +384,134 @@ func (w *oneWork) nuclearBlock(a, b *shellData, charges []float64, centers [][3]
 				}
 				Boys(lt, q.p*r2, boys)
 				pref := -charges[c] * base
-				for m := 0; m <= lt; m++ {
-					w.aux[m][0] = pref * boys[m]
+				for m := 0; m < M; m++ {
+					th[m] = pref * boys[m]
 				}
-				w.nuclearVRR(lt, q.pa, pc, q.oo2p)
-				a0 := w.aux[0]
-				for i := lo; i < hi; i++ {
-					acc[i] += a0[i]
+				nuclearVRR(th, la, lb, nB, M, q.pa, q.pb, pc, q.oo2p)
+				for r := 0; r < na; r++ {
+					row := th[(loA+r)*nB*M:]
+					o := out[r*nb : r*nb+nb]
+					for cc := range o {
+						o[cc] += row[(loB+cc)*M]
+					}
 				}
 			}
 		}
 	}
-	w.transferToKet(a, b, out)
 }
 
-// nuclearVRR builds aux[m][e] = Θ^(m)(e|0) for 1 ≤ |e| ≤ lt, m ≤ lt−|e|,
-// from aux[m][0] (Obara & Saika 1986, eq. A20 with b = 0):
-// Θ^(m)(e+1_i) = PA_i Θ^(m)(e) − PC_i Θ^(m+1)(e) + e_i/(2p) (Θ^(m)(e−1_i) − Θ^(m+1)(e−1_i)).
-func (w *oneWork) nuclearVRR(lt int, pa, pc [3]float64, oo2p float64) {
-	for L := 1; L <= lt; L++ {
+// nuclearVRR fills th[(ia·nB + ib)·M + m] = Θ^(m)(a|b) for all components
+// |a| ≤ la, |b| ≤ lb (global indices ia, ib) and m ≤ la+lb−|a|−|b| from
+// th[m] = Θ^(m)(0|0), by Obara & Saika (1986) eq. A20:
+// Θ^(m)(a+1_i|b) = PA_i Θ^(m)(a|b) − PC_i Θ^(m+1)(a|b)
+//
+//   - a_i/(2p) [Θ^(m)(a−1_i|b) − Θ^(m+1)(a−1_i|b)]
+//   - b_i/(2p) [Θ^(m)(a|b−1_i) − Θ^(m+1)(a|b−1_i)]
+//
+// and the same with PB for the ket.
+func nuclearVRR(th []float64, la, lb, nB, M int, pa, pb, pc [3]float64, oo2p float64) {
+	lt := la + lb
+	// bra, b = 0
+	for ia := 1; ia < numComponentsUpTo(la); ia++ {
+		st := &cartSteps[ia]
+		d := st.dir
+		L := int(st.e[0] + st.e[1] + st.e[2])
+		dst := th[ia*nB*M:]
+		s1 := th[int(st.less[d])*nB*M:]
+		f := float64(st.e[d]-1) * oo2p
+		if st.less2 >= 0 {
+			s2 := th[int(st.less2)*nB*M:]
+			for m := 0; m <= lt-L; m++ {
+				dst[m] = pa[d]*s1[m] - pc[d]*s1[m+1] + f*(s2[m]-s2[m+1])
+			}
+		} else {
+			for m := 0; m <= lt-L; m++ {
+				dst[m] = pa[d]*s1[m] - pc[d]*s1[m+1]
+			}
+		}
+	}
+	// ket
+	for ib := 1; ib < nB; ib++ {
+		sb := &cartSteps[ib]
+		d := sb.dir
+		Lb := int(sb.e[0] + sb.e[1] + sb.e[2])
+		ib1 := int(sb.less[d])
+		ib2 := int(sb.less2)
+		fb := float64(sb.e[d]-1) * oo2p
+		for ia := 0; ia < numComponentsUpTo(la); ia++ {
+			sa := &cartSteps[ia]
+			La := int(sa.e[0] + sa.e[1] + sa.e[2])
+			mmax := lt - La - Lb
+			if mmax < 0 {
+				continue
+			}
+			dst := th[(ia*nB+ib)*M:]
+			s1 := th[(ia*nB+ib1)*M:]
+			for m := 0; m <= mmax; m++ {
+				dst[m] = pb[d]*s1[m] - pc[d]*s1[m+1]
+			}
+			if sa.e[d] > 0 {
+				fa := float64(sa.e[d]) * oo2p
+				s3 := th[(int(sa.less[d])*nB+ib1)*M:]
+				for m := 0; m <= mmax; m++ {
+					dst[m] += fa * (s3[m] - s3[m+1])
+				}
+			}
+			if ib2 >= 0 {
+				s2 := th[(ia*nB+ib2)*M:]
+				for m := 0; m <= mmax; m++ {
+					dst[m] += fb * (s2[m] - s2[m+1])
+				}
+			}
+		}
+	}
+}
+
+// cartStep describes how a Cartesian component (by global index, see
+// globalIndex) is reached in the recurrences.
+type cartStep struct {
+	e     [3]int8  // exponents (lx, ly, lz)
+	dir   int8     // direction used to build it: first non-zero exponent
+	less  [3]int32 // global index of the component minus 1_k, −1 if e_k = 0
+	less2 int32    // global index minus 2_dir, −1 if e_dir < 2
+}
+
+// cartStepMaxL is the highest angular momentum covered by cartSteps.
+const cartStepMaxL = 2*maxSphericalL + 4
+
+// cartSteps is read-only data built once at package initialization.
+var cartSteps = func() []cartStep {
+	out := make([]cartStep, numComponentsUpTo(cartStepMaxL))
+	for L := 0; L <= cartStepMaxL; L++ {
 		for lx := L; lx >= 0; lx-- {
 			for ly := L - lx; ly >= 0; ly-- {
 				lz := L - lx - ly
 				e := [3]int{lx, ly, lz}
-				// recurse along the first direction with a non-zero exponent
-				d := 0
-				if lx == 0 {
-					d = 1
-					if ly == 0 {
-						d = 2
+				st := cartStep{e: [3]int8{int8(lx), int8(ly), int8(lz)}, less2: -1}
+				for k := 0; k < 3; k++ {
+					st.less[k] = -1
+					if e[k] > 0 {
+						f := e
+						f[k]--
+						st.less[k] = int32(globalIndex(f[0], f[1], f[2]))
 					}
 				}
-				e1 := e
-				e1[d]--
-				i0 := globalIndex(lx, ly, lz)
-				i1 := globalIndex(e1[0], e1[1], e1[2])
-				i2 := -1
-				f := float64(e1[d]) * oo2p
-				if e1[d] > 0 {
-					e2 := e1
-					e2[d]--
-					i2 = globalIndex(e2[0], e2[1], e2[2])
+				switch {
+				case lx > 0:
+					st.dir = 0
+				case ly > 0:
+					st.dir = 1
+				default:
+					st.dir = 2
 				}
-				for m := 0; m <= lt-L; m++ {
-					v := pa[d]*w.aux[m][i1] - pc[d]*w.aux[m+1][i1]
-					if i2 >= 0 {
-						v += f * (w.aux[m][i2] - w.aux[m+1][i2])
-					}
-					w.aux[m][i0] = v
+				if e[st.dir] >= 2 {
+					f := e
+					f[st.dir] -= 2
+					st.less2 = int32(globalIndex(f[0], f[1], f[2]))
 				}
+				out[globalIndex(lx, ly, lz)] = st
 			}
 		}
 	}
-}
-
-// transferToKet applies the horizontal recurrence
-// (e|f) = (e+1_i|f−1_i) + (A−B)_i (e|f−1_i) to the contracted integrals
-// w.acc[(e|0)], |e| ∈ [la, la+lb], and writes (a|b) to out
-// (ncart_a×ncart_b).
-func (w *oneWork) transferToKet(a, b *shellData, out []float64) {
-	la, lb := a.l, b.l
-	var ab [3]float64
-	for k := 0; k < 3; k++ {
-		ab[k] = a.center[k] - b.center[k]
-	}
-	na, nb := a.ncart, b.ncart
-	if lb == 0 {
-		copy(out[:na], w.acc[numComponentsUpTo(la-1):numComponentsUpTo(la)])
-		return
-	}
-	// cur holds (e|f) for |f| = k as [global e index][component of f];
-	// start with k = 0, one column.
-	cur := w.hrr[0]
-	next := w.hrr[1]
-	lt := la + lb
-	ntot := numComponentsUpTo(lt)
-	copy(cur[:ntot], w.acc[:ntot])
-	for k := 1; k <= lb; k++ {
-		nf := (k + 1) * (k + 2) / 2
-		nfPrev := k * (k + 1) / 2
-		// e runs over |e| ∈ [la, lt−k]
-		for L := la; L <= lt-k; L++ {
-			for ex := L; ex >= 0; ex-- {
-				for ey := L - ex; ey >= 0; ey-- {
-					ez := L - ex - ey
-					ie := globalIndex(ex, ey, ez)
-					for fx := k; fx >= 0; fx-- {
-						for fy := k - fx; fy >= 0; fy-- {
-							fz := k - fx - fy
-							f := [3]int{fx, fy, fz}
-							d := 0
-							if fx == 0 {
-								d = 1
-								if fy == 0 {
-									d = 2
-								}
-							}
-							f1 := f
-							f1[d]--
-							e1 := [3]int{ex, ey, ez}
-							e1[d]++
-							jf := componentIndex(fy, fz)
-							jf1 := componentIndex(f1[1], f1[2])
-							ie1 := globalIndex(e1[0], e1[1], e1[2])
-							next[ie*nf+jf] = cur[ie1*nfPrev+jf1] + ab[d]*cur[ie*nfPrev+jf1]
-						}
-					}
-				}
-			}
-		}
-		cur, next = next, cur
-	}
-	lo := numComponentsUpTo(la - 1)
-	for r := 0; r < na; r++ {
-		copy(out[r*nb:r*nb+nb], cur[(lo+r)*nb:(lo+r)*nb+nb])
-	}
-}
+	return out
+}()

@@ -280,3 +280,42 @@ func BenchmarkOneElectronCCpVTZ(b *testing.B) {
 		bs.Nuclear(Z, R)
 	}
 }
+
+// Every function of every element of every basis set in poise's library
+// is normalized to one, both as published (spherical or Cartesian) and
+// with the other convention: a check of the contraction renormalization
+// against the published contraction coefficients of each set.
+func TestOverlapUnitDiagonalLibrary(t *testing.T) {
+	for _, info := range basis.List() {
+		set, err := basis.Load(info.Name)
+		if err != nil {
+			t.Fatalf("%s: %v", info.Name, err)
+		}
+		for _, Z := range set.Elements() {
+			shells, _, _ := set.ElementShells(Z)
+			for _, flip := range []bool{false, true} {
+				sh := append([]basis.Shell(nil), shells...)
+				if flip {
+					for i := range sh {
+						sh[i].Pure = !sh[i].Pure && sh[i].L >= 2
+					}
+				}
+				// Only the diagonal shell blocks are needed.
+				b := NewBasis(sh)
+				w := newOneWork(b.MaxL)
+				nc := len(cartesianExponents(b.MaxL))
+				cart, tmp, fin := make([]float64, nc*nc), make([]float64, nc*nc), make([]float64, nc*nc)
+				for i := range b.shells {
+					s := &b.shells[i]
+					w.overlapBlock(s, s, cart)
+					transformPair(s, s, cart, tmp, fin)
+					for p := 0; p < s.nfunc; p++ {
+						if v := fin[p*s.nfunc+p]; math.Abs(v-1) > 1e-12 {
+							t.Errorf("%s Z=%d (flip %v) shell %d: ⟨%d|%d⟩ = %.16g, want 1", info.Name, Z, flip, i, p, p, v)
+						}
+					}
+				}
+			}
+		}
+	}
+}

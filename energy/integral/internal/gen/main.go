@@ -10,13 +10,15 @@
 // contracted [e0|f0] and finally applies the horizontal recursion on bra
 // and ket.
 //
-// Run from the module root:
+// Run it with go generate in energy/integral (see eri.go) or from the
+// module root:
 //
-//	go run ./energy/integral/internal/gen > energy/integral/eri_gen.go
+//	go run ./energy/integral/internal/gen -o energy/integral/eri_gen.go
 package main
 
 import (
 	"bytes"
+	"flag"
 	"fmt"
 	"go/format"
 	"os"
@@ -31,6 +33,10 @@ const genMaxL = 2
 // every Boys order by its own Taylor series; higher ones evaluate the top
 // order and recur downwards with one exponential.
 const boysDirectMax = 3
+
+// estrin selects Estrin's scheme rather than Horner's rule for the Taylor
+// polynomials of the Boys function.
+const estrin = false
 
 type vec [3]int
 
@@ -370,13 +376,21 @@ func genBoys(w *bytes.Buffer, L int) {
 	fmt.Fprintf(w, "if t < eriBoysTMax {\n")
 	fmt.Fprintf(w, "k := int(t*eriBoysInvStep + 0.5)\n")
 	fmt.Fprintf(w, "d := t - float64(k)*eriBoysStep\n")
+	// Estrin's scheme: shorter dependency chains than Horner's rule.
 	horner := func(m int) string {
-		// c[m*8+0] + d*(c[m*8+1] + d*(…))
-		s := fmt.Sprintf("c[%d]", m*8+7)
-		for k := 6; k >= 0; k-- {
-			s = fmt.Sprintf("c[%d] + d*(%s)", m*8+k, s)
+		c := func(k int) string { return fmt.Sprintf("c[%d]", m*8+k) }
+		if !estrin {
+			s := c(7)
+			for k := 6; k >= 0; k-- {
+				s = fmt.Sprintf("%s + d*(%s)", c(k), s)
+			}
+			return s
 		}
-		return s
+		return fmt.Sprintf("(%s + d*%s) + d2*(%s + d*%s) + d4*((%s + d*%s) + d2*(%s + d*%s))",
+			c(0), c(1), c(2), c(3), c(4), c(5), c(6), c(7))
+	}
+	if estrin {
+		fmt.Fprintf(w, "d2 := d * d\nd4 := d2 * d2\n")
 	}
 	if L <= boysDirectMax {
 		fmt.Fprintf(w, "c := (*[%d]float64)(eriBoysTab[k*eriBoysRow:])\n", (L+1)*8)
@@ -488,6 +502,8 @@ func genHRR(w *bytes.Buffer, la, lb, lc, ld, nf int) {
 // ---------------------------------------------------------------------------
 
 func main() {
+	outPath := flag.String("o", "", "output file (default standard output)")
+	flag.Parse()
 	var classes [][4]int
 	key := func(la, lb int) int { return (la+lb)*16 + la }
 	for la := 0; la <= genMaxL; la++ {
@@ -530,7 +546,14 @@ func main() {
 		fmt.Fprintln(os.Stderr, "gen:", err)
 		os.Exit(1)
 	}
-	os.Stdout.Write(src)
+	if *outPath == "" {
+		os.Stdout.Write(src)
+		return
+	}
+	if err := os.WriteFile(*outPath, src, 0o644); err != nil {
+		fmt.Fprintln(os.Stderr, "gen:", err)
+		os.Exit(1)
+	}
 }
 
 // genClassWithAB emits a class, declaring the centre differences the

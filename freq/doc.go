@@ -1,0 +1,72 @@
+// Package freq computes Hessians by finite differences of analytic
+// gradients and the harmonic analysis that follows: normal modes,
+// vibrational frequencies, reduced masses, force constants, IR
+// intensities, zero-point energies, isotopologues and empirical scale
+// factors. It sees the electronic structure only through the surface
+// interface of package gradient (coordinates in; energy, gradient and
+// dipole out), so it is tested on analytic model surfaces as well as SCF
+// ones.
+//
+// # Hessian
+//
+// ComputeHessian displaces every Cartesian coordinate by ±h (default
+// DefaultStepBohr = 0.005 bohr) and differentiates the analytic gradients,
+//
+//	H_ij = (g_j(x + h e_i) − g_j(x − h e_i)) / 2h,
+//
+// or with the optional four-point formula
+// (−g(+2h) + 8g(+h) − 8g(−h) + g(−2h))/12h (error O(h⁴); B. Fornberg,
+// Math. Comp. 51, 699 (1988)); the matrix is then symmetrized,
+// H ← (H + Hᵀ)/2, and its asymmetry reported as a noise measure. The
+// dipole derivatives ∂μ/∂x_i (atomic polar tensors) come from the same
+// points. The 6N (12N) displaced points are independent: k run at once,
+// sharing the thread budget (Threads/k threads each), all warm-started
+// from the reference density (Request.KeepWarmStart), so the result does
+// not depend on the order or the thread count. With a work directory each
+// finished point is saved as a small JSON file (temporary file and
+// rename), and an interrupted run resumes with what is saved.
+//
+// # Harmonic analysis
+//
+// Analyze follows E. B. Wilson, J. C. Decius, P. C. Cross, Molecular
+// Vibrations (McGraw-Hill 1955): the Hessian is mass-weighted
+// (H̃ = M^{-1/2} H M^{-1/2}; most abundant isotopes by default), the
+// translations and rotations about the centre of mass are projected out
+// (W. H. Miller, N. C. Handy, J. E. Adams, J. Chem. Phys. 72, 99 (1980);
+// one rotation fewer for a linear molecule) by diagonalizing H̃ within an
+// orthonormal basis of their complement, which yields exactly 3N−6 (3N−5)
+// vibrations. For an eigenvalue λ and normalized eigenvector q:
+//
+//	ν̃ = √λ / (2πc)                       (negative for λ < 0: imaginary)
+//	μ = 1 / Σ_i q_i²/m_i                  reduced mass (u)
+//	k = λμ                                force constant (mdyn/Å)
+//	A = N_A π/(3c²) |∂μ/∂Q|² /(4πε0)      IR intensity (km/mol), ∂μ/∂Q = Σ_i (∂μ/∂x_i) q_i/√m_i
+//	ZPE = ½ Σ hcν̃                        over the real modes
+//
+// (the intensity of the fundamental in the double-harmonic approximation;
+// Wilson, Decius & Cross ch. 7). The translations and rotations are
+// projected before diagonalizing; RigidBodyCm1 reports the roots of the
+// unprojected Hessian nearest zero, a check of the numerical quality. Each
+// mode is described by the internal coordinates it moves most (bonds from
+// covalent radii, bends, linear bends, torsions; angle changes weighted by
+// their arms so that they compare with stretches), e.g.
+// "O–H stretch, in phase".
+//
+// Isotopologues reuse the Hessian and the dipole derivatives with other
+// masses: the Born–Oppenheimer surface does not depend on the nuclear
+// masses. The Teller–Redlich product rule checks this in the tests.
+//
+// # Scale factors
+//
+// LookupScale holds published factors per level of theory, separate for
+// frequencies, zero-point energies, and the thermal enthalpy and entropy
+// (A. P. Scott, L. Radom, J. Phys. Chem. 100, 16502 (1996)); the source
+// stands beside each entry.
+//
+// # Files
+//
+// File is the JSON document of an analysis (the contract package thermo
+// reads, plus the Hessian, dipole derivatives, masses and level of theory
+// so that isotopologues and thermochemistry are redone from the file
+// alone). Every file is written atomically (WriteFileAtomic).
+package freq

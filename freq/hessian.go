@@ -1,0 +1,359 @@
+package freq
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"sync"
+
+	"poise/gradient"
+)
+
+// DefaultStepBohr is the displacement of the finite-difference Hessian, in
+// bohr. The central difference of analytic gradients has a truncation
+// error h²/6·∂⁴E/∂x⁴ (about 4e-6·∂⁴E/∂x⁴, well below 0.1 cm⁻¹ for
+// stretches) and a rounding error ε_g/h from the gradient noise ε_g: SCF
+// gradients converged to ~1e-7 Eh/bohr give ~2e-5 Eh/bohr², a fraction of
+// a wavenumber even for soft modes (common practice: 0.001–0.01 bohr).
+const DefaultStepBohr = 0.005
+
+// maxStepBohr bounds the step: beyond it the harmonic picture of a
+// displacement is lost.
+const maxStepBohr = 0.05
+
+// HessianOptions control ComputeHessian.
+type HessianOptions struct {
+	// StepBohr is the displacement of each Cartesian coordinate (bohr);
+	// 0 means DefaultStepBohr.
+	StepBohr float64
+	// FourPoint uses the fourth-order formula
+	// (−g(+2h) + 8g(+h) − 8g(−h) + g(−2h))/12h, twice the gradients of
+	// the default central difference (g(+h) − g(−h))/2h.
+	FourPoint bool
+	// Dipole asks for the dipole derivatives (IR intensities) from the
+	// same displaced points.
+	Dipole bool
+	// Threads is the total thread budget (≤ 0: 1). Concurrent evaluations
+	// share it: k at a time with Threads/k threads each (the first
+	// Threads mod k get one more).
+	Threads int
+	// Concurrent is the number k of displaced points evaluated at once;
+	// 0 means min(Threads, points left). Displaced points are
+	// independent, so one thread per point scales best; a memory-bound
+	// surface may want fewer at a time with more threads each.
+	Concurrent int
+	// WorkDir, if set, keeps every finished point (one JSON file each,
+	// written atomically) so that an interrupted calculation resumes
+	// without recomputing them.
+	WorkDir string
+	// Tag identifies what else the gradients depend on (level of theory,
+	// SCF settings); a work directory written under another tag, or for
+	// another geometry or step, is not reused.
+	Tag string
+	// DiscardStale empties a work directory that belongs to another
+	// calculation instead of failing with ErrStaleWorkDir.
+	DiscardStale bool
+	// Charge and MassesU describe the surface's dipole origin for charged
+	// molecules: a surface that reports the dipole about the centre of
+	// mass (masses MassesU, u) of a molecule of total charge Charge has
+	// its derivatives corrected by Charge·m_i/M to those about a fixed
+	// origin, which do not depend on the masses. Neutral molecules need
+	// neither.
+	Charge  float64
+	MassesU []float64
+	// Progress, if set, is called (from one goroutine at a time) after
+	// every finished or reloaded point.
+	Progress func(Progress)
+}
+
+// Progress reports the state of a Hessian calculation.
+type Progress struct {
+	Done, Total   int // displaced points finished (reloaded included), and in all
+	Reused        int // displaced points read from the work directory
+	SCFIterations int // of the point just finished (0 when reloaded)
+}
+
+// Hessian is the result of ComputeHessian. Matrices are row-major; n = 3N.
+type Hessian struct {
+	CoordsBohr    []float64  // reference geometry (n)
+	EnergyHartree float64    // at the reference geometry
+	GradientAU    []float64  // at the reference geometry (n, Eh/bohr)
+	DipoleAU      [3]float64 // at the reference geometry (e·bohr)
+	// HessianAU is ∂²E/∂x_i∂x_j (n×n, Eh/bohr²), symmetrized.
+	HessianAU []float64
+	// AsymmetryAU is the largest |H_ij − H_ji| before symmetrization, a
+	// measure of the numerical noise.
+	AsymmetryAU float64
+	// DipoleDerivAU is ∂μ_k/∂x_i (n×3, e), the atomic polar tensors about
+	// a fixed origin; nil without HessianOptions.Dipole.
+	DipoleDerivAU []float64
+	StepBohr      float64
+	FourPoint     bool
+	// Displacements is the number of displaced points; Computed of them
+	// were evaluated by this call and Reused were read from the work
+	// directory. Evaluations counts every surface evaluation of this call
+	// (the reference, and when resuming a re-evaluation of its energy to
+	// restore the warm start).
+	Displacements, Computed, Reused, Evaluations int
+	// SCFIterations are those of each displaced point, in the order of
+	// the displacements (coordinate-major, steps +1, −1[, +2, −2]); 0 for
+	// surfaces without an SCF. ReferenceSCFIterations is that of the
+	// reference point.
+	SCFIterations          []int
+	ReferenceSCFIterations int
+}
+
+// displacement is one displaced point.
+type displacement struct {
+	coord, steps int
+}
+
+func (o *HessianOptions) stepList() []int {
+	if o.FourPoint {
+		return []int{1, -1, 2, -2}
+	}
+	return []int{1, -1}
+}
+
+// ComputeHessian computes the Hessian of s at x0 (3N coordinates, bohr) by
+// finite differences of its analytic gradients, and with opt.Dipole the
+// dipole derivatives from the same points.
+//
+// The reference point is evaluated first, normally (so that an SCF
+// surface keeps its density as the warm start); then every displaced point
+// with Request.KeepWarmStart, so that all start from the reference density
+// and the result does not depend on their order or on the thread count.
+// The rows are symmetrized, H ← (H + Hᵀ)/2.
+//
+// With opt.WorkDir every finished point is saved. A later call with the
+// same geometry, step, formula and tag reloads them; if any displacement
+// is left, the reference energy is evaluated once more to restore the
+// surface's warm start. When ctx is cancelled the call returns ctx's error
+// after the points in flight stop; those finished stay saved.
+func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt HessianOptions) (*Hessian, error) {
+	nat := s.NumAtoms()
+	n := 3 * nat
+	if nat < 1 {
+		return nil, errors.New("freq: no atoms")
+	}
+	if len(x0) != n {
+		return nil, fmt.Errorf("freq: %d coordinates for %d atoms", len(x0), nat)
+	}
+	for i, v := range x0 {
+		if !finite(v) {
+			return nil, fmt.Errorf("freq: coordinate %d is %v", i+1, v)
+		}
+	}
+	step := opt.StepBohr
+	if step == 0 {
+		step = DefaultStepBohr
+	}
+	if !(step > 0) || step > maxStepBohr {
+		return nil, fmt.Errorf("freq: finite-difference step %g bohr outside (0, %g]", step, maxStepBohr)
+	}
+	if opt.MassesU != nil && len(opt.MassesU) != nat {
+		return nil, fmt.Errorf("freq: %d masses for %d atoms", len(opt.MassesU), nat)
+	}
+	threads := max(opt.Threads, 1)
+
+	man := &storeManifest{Format: storeFormat, Version: storeVersion, Tag: opt.Tag, NumAtoms: nat,
+		CoordsBohr: append([]float64(nil), x0...), StepBohr: step, FourPoint: opt.FourPoint, Dipole: opt.Dipole}
+	st, _, err := openStore(opt.WorkDir, man, opt.DiscardStale)
+	if err != nil {
+		return nil, err
+	}
+
+	h := &Hessian{CoordsBohr: append([]float64(nil), x0...), StepBohr: step, FourPoint: opt.FourPoint}
+	evals := 0
+
+	// The reference point.
+	ref, haveRef := st.load(referenceName, n, step, -1, 0)
+	if !haveRef {
+		var pt gradient.Point
+		if err := s.Evaluate(ctx, x0, gradient.Request{Gradient: true, Dipole: opt.Dipole, Threads: threads}, &pt); err != nil {
+			return nil, fmt.Errorf("freq: reference point: %w", err)
+		}
+		evals++
+		ref = storedPoint{Coordinate: -1, StepBohr: step, EnergyHartree: pt.EnergyHartree,
+			Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations}
+		if err := st.save(referenceName, &ref); err != nil {
+			return nil, err
+		}
+	}
+	h.EnergyHartree, h.GradientAU, h.DipoleAU = ref.EnergyHartree, ref.Gradient, ref.DipoleAU
+	h.ReferenceSCFIterations = ref.SCFIterations
+
+	// The displaced points: reload what is saved.
+	steps := opt.stepList()
+	var jobs []displacement
+	for i := 0; i < n; i++ {
+		for _, k := range steps {
+			jobs = append(jobs, displacement{i, k})
+		}
+	}
+	h.Displacements = len(jobs)
+	results := make([]storedPoint, len(jobs))
+	var todo []int
+	for j, d := range jobs {
+		if p, ok := st.load(displacementName(d.coord, d.steps), n, step, d.coord, d.steps); ok {
+			results[j] = p
+			h.Reused++
+			continue
+		}
+		todo = append(todo, j)
+	}
+	if opt.Progress != nil && h.Reused > 0 {
+		opt.Progress(Progress{Done: h.Reused, Total: len(jobs), Reused: h.Reused})
+	}
+	if len(todo) > 0 && haveRef {
+		// Restore the warm start the saved points were computed from.
+		var pt gradient.Point
+		if err := s.Evaluate(ctx, x0, gradient.Request{Threads: threads}, &pt); err != nil {
+			return nil, fmt.Errorf("freq: reference point (restoring the warm start): %w", err)
+		}
+		evals++
+	}
+	n2, err := runDisplacements(ctx, s, x0, step, opt, threads, jobs, todo, results, st, h.Reused)
+	evals += n2
+	h.Computed = n2
+	h.Evaluations = evals
+	if err != nil {
+		return nil, err
+	}
+
+	// Assemble.
+	h.SCFIterations = make([]int, len(jobs))
+	for j := range jobs {
+		h.SCFIterations[j] = results[j].SCFIterations
+	}
+	col := func(coord int, get func(p *storedPoint) []float64, dst []float64) {
+		j := coord * len(steps)
+		p1, m1 := get(&results[j]), get(&results[j+1])
+		if !opt.FourPoint {
+			for k := range dst {
+				dst[k] = (p1[k] - m1[k]) / (2 * step)
+			}
+			return
+		}
+		p2, m2 := get(&results[j+2]), get(&results[j+3])
+		for k := range dst {
+			dst[k] = (8*(p1[k]-m1[k]) - (p2[k] - m2[k])) / (12 * step)
+		}
+	}
+	raw := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		col(i, func(p *storedPoint) []float64 { return p.Gradient }, raw[i*n:(i+1)*n])
+	}
+	h.HessianAU = make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			h.AsymmetryAU = math.Max(h.AsymmetryAU, math.Abs(raw[i*n+j]-raw[j*n+i]))
+			h.HessianAU[i*n+j] = 0.5 * (raw[i*n+j] + raw[j*n+i])
+		}
+	}
+	if opt.Dipole {
+		h.DipoleDerivAU = make([]float64, 3*n)
+		for i := 0; i < n; i++ {
+			col(i, func(p *storedPoint) []float64 { return p.DipoleAU[:] }, h.DipoleDerivAU[3*i:3*i+3])
+		}
+		if opt.Charge != 0 && opt.MassesU != nil {
+			total := 0.0
+			for _, m := range opt.MassesU {
+				total += m
+			}
+			for i := 0; i < n; i++ {
+				h.DipoleDerivAU[3*i+i%3] += opt.Charge * opt.MassesU[i/3] / total
+			}
+		}
+	}
+	return h, nil
+}
+
+// runDisplacements evaluates the displaced points listed in todo on k
+// goroutines and saves each as it finishes. It returns the number
+// evaluated.
+func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, step float64, opt HessianOptions,
+	threads int, jobs []displacement, todo []int, results []storedPoint, st *store, reused int) (int, error) {
+	if len(todo) == 0 {
+		return 0, nil
+	}
+	k := opt.Concurrent
+	if k <= 0 {
+		k = threads
+	}
+	k = min(k, len(todo), threads)
+	cctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	var (
+		mu       sync.Mutex
+		next     int
+		done     = reused
+		computed int
+		firstErr error
+		wg       sync.WaitGroup
+	)
+	fail := func(err error) {
+		mu.Lock()
+		if firstErr == nil {
+			firstErr = err
+		}
+		mu.Unlock()
+		cancel()
+	}
+	for w := 0; w < k; w++ {
+		share := threads / k
+		if w < threads%k {
+			share++
+		}
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			x := make([]float64, len(x0))
+			var pt gradient.Point
+			for cctx.Err() == nil {
+				mu.Lock()
+				t := next
+				next++
+				mu.Unlock()
+				if t >= len(todo) {
+					return
+				}
+				j := todo[t]
+				d := jobs[j]
+				copy(x, x0)
+				x[d.coord] += float64(d.steps) * step
+				pt.Gradient = nil
+				err := s.Evaluate(cctx, x, gradient.Request{Gradient: true, Dipole: opt.Dipole, Threads: share, KeepWarmStart: true}, &pt)
+				if err != nil {
+					if cctx.Err() == nil {
+						fail(fmt.Errorf("freq: displaced point (atom %d %c %+g bohr): %w", d.coord/3+1, "xyz"[d.coord%3], float64(d.steps)*step, err))
+					}
+					return
+				}
+				p := storedPoint{Coordinate: d.coord, Steps: d.steps, StepBohr: step, EnergyHartree: pt.EnergyHartree,
+					Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations}
+				if err := st.save(displacementName(d.coord, d.steps), &p); err != nil {
+					fail(err)
+					return
+				}
+				mu.Lock()
+				results[j] = p
+				done++
+				computed++
+				if opt.Progress != nil {
+					opt.Progress(Progress{Done: done, Total: len(jobs), Reused: reused, SCFIterations: p.SCFIterations})
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	wg.Wait()
+	if firstErr != nil {
+		return computed, firstErr
+	}
+	if err := ctx.Err(); err != nil {
+		return computed, fmt.Errorf("freq: Hessian interrupted after %d of %d displaced points: %w", done, len(jobs), err)
+	}
+	return computed, nil
+}

@@ -1,0 +1,375 @@
+package freq
+
+import (
+	"context"
+	"math"
+	"sort"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+
+	"poise/energy/basis"
+	"poise/energy/molecule"
+	"poise/energy/scf"
+	"poise/energy/units"
+	"poise/energy/xc"
+	"poise/gradient"
+)
+
+// atomSpec is an atom of a test molecule, position in Å.
+type atomSpec struct {
+	sym     string
+	x, y, z float64
+}
+
+func buildMolecule(t testing.TB, atoms []atomSpec) *molecule.Molecule {
+	t.Helper()
+	m := &molecule.Molecule{}
+	for _, a := range atoms {
+		z, ok := molecule.ElementBySymbol(a.sym)
+		if !ok {
+			t.Fatalf("unknown element %q", a.sym)
+		}
+		m.Atoms = append(m.Atoms, molecule.Atom{Z: z, Symbol: molecule.Symbol(z), Mass: molecule.MostAbundantMass(z),
+			Position: [3]float64{a.x * units.AngstromBohr, a.y * units.AngstromBohr, a.z * units.AngstromBohr}})
+	}
+	if err := m.SetSpin(0, 0); err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+func scfSurface(t testing.TB, m *molecule.Molecule, method, basisName string, threads int) *gradient.SCFSurface {
+	t.Helper()
+	set, err := basis.Load(basisName)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fn, err := xc.Lookup(method)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := gradient.NewSCFSurface(m, gradient.Config{Basis: set, Method: fn, SCF: scf.Options{Threads: threads}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+// relaxTol is the gradient norm (Eh/bohr, translations and rotations
+// removed) at which the test relaxation stops: far tighter than a report
+// geometry, as a frequency analysis wants.
+const relaxTol = 2e-6
+
+// relax minimizes the energy of s from x with quasi-Newton (BFGS) steps in
+// Cartesian coordinates, starting from the Hessian h0 (the relaxation is
+// the test's tool, not under test; the checks below hold only at a
+// stationary point).
+func relax(t testing.TB, s gradient.Surface, x, h0 []float64) []float64 {
+	t.Helper()
+	n := len(x)
+	x = append([]float64(nil), x...)
+	b := mat.NewSymDense(n, nil)
+	for i := 0; i < n; i++ {
+		for j := i; j < n; j++ {
+			b.SetSym(i, j, 0.5*(h0[i*n+j]+h0[j*n+i]))
+		}
+	}
+	var pt gradient.Point
+	eval := func(x []float64) []float64 {
+		pt.Gradient = nil
+		if err := s.Evaluate(context.Background(), x, gradient.Request{Gradient: true, Threads: 2}, &pt); err != nil {
+			t.Fatal(err)
+		}
+		return pt.Gradient
+	}
+	g := eval(x)
+	unit := make([]float64, n/3)
+	for i := range unit {
+		unit[i] = 1
+	}
+	for it := 0; it < 60; it++ {
+		ext, _ := externalBasis(unit, x)
+		proj := func(v []float64) []float64 {
+			v = append([]float64(nil), v...)
+			for _, e := range ext {
+				d := dot(v, e)
+				for i := range v {
+					v[i] -= d * e[i]
+				}
+			}
+			return v
+		}
+		gp := proj(g)
+		if math.Sqrt(dot(gp, gp)) < relaxTol {
+			return x
+		}
+		// Step −B⁺g within the internal space (eigenvalues kept positive).
+		var es mat.EigenSym
+		if !es.Factorize(b, true) {
+			t.Fatal("relax: eigen-decomposition failed")
+		}
+		vals := es.Values(nil)
+		var vec mat.Dense
+		es.VectorsTo(&vec)
+		step := make([]float64, n)
+		for k := 0; k < n; k++ {
+			v := make([]float64, n)
+			for i := range v {
+				v[i] = vec.At(i, k)
+			}
+			vi := proj(v)
+			if dot(vi, vi) < 0.5 { // a rigid-body direction
+				continue
+			}
+			c := dot(v, gp) / math.Max(math.Abs(vals[k]), 1e-3)
+			for i := range step {
+				step[i] -= c * v[i]
+			}
+		}
+		step = proj(step)
+		if l := math.Sqrt(dot(step, step)); l > 0.3 {
+			for i := range step {
+				step[i] *= 0.3 / l
+			}
+		}
+		xn := make([]float64, n)
+		for i := range xn {
+			xn[i] = x[i] + step[i]
+		}
+		gn := eval(xn)
+		y := make([]float64, n)
+		for i := range y {
+			y[i] = gn[i] - g[i]
+		}
+		ys := dot(y, step)
+		bs := make([]float64, n)
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				bs[i] += b.At(i, j) * step[j]
+			}
+		}
+		sbs := dot(step, bs)
+		if ys > 1e-12 && sbs > 1e-12 {
+			for i := 0; i < n; i++ {
+				for j := i; j < n; j++ {
+					b.SetSym(i, j, b.At(i, j)+y[i]*y[j]/ys-bs[i]*bs[j]/sbs)
+				}
+			}
+		}
+		x, g = xn, gn
+	}
+	t.Fatal("relax: not converged in 60 steps")
+	return nil
+}
+
+// relaxedModes relaxes m at the level given (starting from the Hessian of
+// the start geometry at startMethod/startBasis, the same level when
+// empty), then computes the Hessian with dipole derivatives and analyzes
+// it with the most abundant isotopes.
+func relaxedModes(t testing.TB, m *molecule.Molecule, method, basisName, startMethod, startBasis string) (*Hessian, *Analysis, []float64) {
+	t.Helper()
+	s := scfSurface(t, m, method, basisName, 2)
+	x0 := gradient.Coordinates(m)
+	start := s
+	if startMethod != "" {
+		start = scfSurface(t, m, startMethod, startBasis, 2)
+	}
+	h0, err := ComputeHessian(context.Background(), start, x0, HessianOptions{Threads: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := relax(t, s, x0, h0.HessianAU)
+	h, err := ComputeHessian(context.Background(), s, x, HessianOptions{Threads: 2, Dipole: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := Analyze(System{Z: zOf(m), MassesU: massesOf(m), CoordsBohr: x, HessianAU: h.HessianAU, DipoleDerivAU: h.DipoleDerivAU})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return h, a, x
+}
+
+func zOf(m *molecule.Molecule) []int {
+	z := make([]int, len(m.Atoms))
+	for i, a := range m.Atoms {
+		z[i] = a.Z
+	}
+	return z
+}
+
+func massesOf(m *molecule.Molecule) []float64 {
+	w := make([]float64, len(m.Atoms))
+	for i, a := range m.Atoms {
+		w[i] = a.Mass
+	}
+	return w
+}
+
+func wavenumbers(a *Analysis) []float64 {
+	w := make([]float64, len(a.Modes))
+	for i, m := range a.Modes {
+		w[i] = m.WavenumberCm1
+	}
+	return w
+}
+
+var waterStart = []atomSpec{{"O", 0, 0, 0.1173}, {"H", 0, 0.7572, -0.4692}, {"H", 0, -0.7572, -0.4692}}
+
+// Water at HF/STO-3G, relaxed: 3N−6 = 3 modes; the rigid-body roots of the
+// unprojected Hessian within 10 cm⁻¹ of zero; the Teller–Redlich product
+// rule for D2O; the Hessian independent of the thread count.
+func TestWaterSTO3G(t *testing.T) {
+	m := buildMolecule(t, waterStart)
+	h, a, x := relaxedModes(t, m, "hf", "sto-3g", "", "")
+	if len(a.Modes) != 3 || a.Linear {
+		t.Fatalf("%d modes (linear %v), want 3", len(a.Modes), a.Linear)
+	}
+	t.Logf("HF/STO-3G water: %.2f cm⁻¹; rigid-body roots %.3f; intensities %.3f %.3f %.3f km/mol; asymmetry %.1e",
+		wavenumbers(a), a.RigidBodyCm1, a.Modes[0].IRIntensityKmMol, a.Modes[1].IRIntensityKmMol, a.Modes[2].IRIntensityKmMol, h.AsymmetryAU)
+	for _, r := range a.RigidBodyCm1 {
+		if math.Abs(r) > 10 {
+			t.Errorf("rigid-body root %.2f cm⁻¹, want within 10 of zero", r)
+		}
+	}
+	checkProductRule(t, zOf(m), x, h.HessianAU, "HF/STO-3G water")
+
+	// Thread count: 1 thread at a time against 2 concurrent points.
+	s1 := scfSurface(t, m, "hf", "sto-3g", 1)
+	h1, err := ComputeHessian(context.Background(), s1, x, HessianOptions{Threads: 1, Dipole: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	worst := 0.0
+	for i := range h1.HessianAU {
+		worst = math.Max(worst, math.Abs(h1.HessianAU[i]-h.HessianAU[i]))
+	}
+	// Both start every displaced point from the reference density; what
+	// is left is the SCF convergence (gradient tolerance 1e-7) over 2h.
+	if worst > 1e-5 {
+		t.Errorf("Hessian with 1 and 2 threads differs by %.1e Eh/bohr²", worst)
+	}
+}
+
+// Degenerate modes of symmetric molecules relaxed from symmetric starts
+// agree to 0.5 cm⁻¹: the bend of CO2 (3N−5 = 4 modes), the E modes of
+// NH3, the T2 modes of CH4 (HF/STO-3G). IR selection rules: the symmetric
+// stretch of CO2 and the stretch of N2 have zero intensity (< 1e-3
+// km/mol; Wilson, Decius & Cross ch. 7: the dipole cannot change in a
+// totally symmetric mode of a molecule with a centre of symmetry).
+func TestDegenerateModesAndSelectionRules(t *testing.T) {
+	if testing.Short() {
+		t.Skip("SCF relaxations")
+	}
+	c3 := func(k int) (float64, float64) {
+		phi := 2 * math.Pi * float64(k) / 3
+		return 0.94 * math.Cos(phi), 0.94 * math.Sin(phi)
+	}
+	x1, y1 := c3(0)
+	x2, y2 := c3(1)
+	x3, y3 := c3(2)
+	a := 1.09 / math.Sqrt(3)
+	for _, c := range []struct {
+		name   string
+		atoms  []atomSpec
+		modes  int
+		groups [][]int // indices (ascending order) of degenerate sets
+	}{
+		{"CO2", []atomSpec{{"C", 0, 0, 0}, {"O", 0, 0, 1.16}, {"O", 0, 0, -1.16}}, 4, [][]int{{0, 1}}},
+		{"NH3", []atomSpec{{"N", 0, 0, 0.11}, {"H", x1, y1, -0.26}, {"H", x2, y2, -0.26}, {"H", x3, y3, -0.26}}, 6, [][]int{{1, 2}, {4, 5}}},
+		{"CH4", []atomSpec{{"C", 0, 0, 0}, {"H", a, a, a}, {"H", a, -a, -a}, {"H", -a, a, -a}, {"H", -a, -a, a}}, 9, [][]int{{0, 1, 2}, {3, 4}, {6, 7, 8}}},
+		{"N2", []atomSpec{{"N", 0, 0, 0.55}, {"N", 0, 0, -0.55}}, 1, nil},
+	} {
+		m := buildMolecule(t, c.atoms)
+		_, an, _ := relaxedModes(t, m, "hf", "sto-3g", "", "")
+		w := wavenumbers(an)
+		t.Logf("%s HF/STO-3G: %.2f cm⁻¹ (linear %v), rigid-body roots %.3f", c.name, w, an.Linear, an.RigidBodyCm1)
+		if len(w) != c.modes {
+			t.Errorf("%s: %d modes, want %d", c.name, len(w), c.modes)
+			continue
+		}
+		for _, g := range c.groups {
+			lo, hi := math.Inf(1), math.Inf(-1)
+			for _, i := range g {
+				lo, hi = math.Min(lo, w[i]), math.Max(hi, w[i])
+			}
+			if hi-lo > 0.5 {
+				t.Errorf("%s: degenerate modes %v spread over %.3f cm⁻¹ (%.3f), want ≤ 0.5", c.name, g, hi-lo, w)
+			}
+		}
+		for i, md := range an.Modes {
+			t.Logf("  %8.2f cm⁻¹  %9.4f km/mol  μ %.4f u  k %.4f mdyn/Å  %s", md.WavenumberCm1, md.IRIntensityKmMol, md.ReducedMassU, md.ForceConstantMdynA, md.Description)
+			_ = i
+		}
+		switch c.name {
+		case "CO2":
+			// The symmetric stretch: the mode in which the carbon stays.
+			found := false
+			for _, md := range an.Modes {
+				if math.Abs(md.Displacement[0])+math.Abs(md.Displacement[1])+math.Abs(md.Displacement[2]) < 1e-6 {
+					found = true
+					if md.IRIntensityKmMol > 1e-3 {
+						t.Errorf("CO2 symmetric stretch (%.1f cm⁻¹): %.2e km/mol, want < 1e-3", md.WavenumberCm1, md.IRIntensityKmMol)
+					}
+					if md.Description != "O–C stretch, in phase" {
+						t.Errorf("CO2 symmetric stretch described as %q", md.Description)
+					}
+				}
+			}
+			if !found {
+				t.Error("CO2: no mode leaves the carbon at rest")
+			}
+		case "N2":
+			if in := an.Modes[0].IRIntensityKmMol; in > 1e-3 {
+				t.Errorf("N2 stretch: %.2e km/mol, want < 1e-3", in)
+			}
+		}
+	}
+}
+
+// Water at its own relaxed geometry (from memory, CCCBDB-style listings of
+// harmonic frequencies): HF/6-31G* 1827, 4070, 4189 cm⁻¹; B3LYP/6-31G*
+// 1713, 3727, 3849 cm⁻¹, each ±10 cm⁻¹. Scaled by the built-in factor they
+// fall within 5 % of the experimental fundamentals 1595, 3657, 3756 cm⁻¹
+// (NIST Chemistry WebBook, T. Shimanouchi's tables; from memory).
+func TestWaterPublished(t *testing.T) {
+	if testing.Short() {
+		t.Skip("B3LYP/6-31G* Hessian")
+	}
+	experiment := []float64{1595, 3657, 3756}
+	for _, c := range []struct {
+		method, basis string
+		want          []float64
+	}{
+		{"hf", "6-31G*", []float64{1827, 4070, 4189}},
+		{"b3lyp", "6-31G*", []float64{1713, 3727, 3849}},
+	} {
+		m := buildMolecule(t, waterStart)
+		h, a, _ := relaxedModes(t, m, c.method, c.basis, "hf", "3-21g")
+		w := wavenumbers(a)
+		sc, err := ChooseScaling("auto", c.method, c.basis)
+		if err != nil || !sc.Found {
+			t.Fatalf("%s/%s: no built-in scale factor (%v)", c.method, c.basis, err)
+		}
+		var its []int
+		its = append(its, h.SCFIterations...)
+		sort.Ints(its)
+		t.Logf("%s/%s water: %.2f cm⁻¹, rigid-body roots %.2f, asymmetry %.1e, SCF iterations per displaced point %d–%d",
+			c.method, c.basis, w, a.RigidBodyCm1, h.AsymmetryAU, its[0], its[len(its)-1])
+		for i := range c.want {
+			if math.Abs(w[i]-c.want[i]) > 10 {
+				t.Errorf("%s/%s mode %d: %.1f cm⁻¹, want %.0f ± 10", c.method, c.basis, i+1, w[i], c.want[i])
+			}
+			scaled := sc.Frequency * w[i]
+			if math.Abs(scaled-experiment[i]) > 0.05*experiment[i] {
+				t.Errorf("%s/%s mode %d: scaled %.1f cm⁻¹, want within 5%% of %.0f", c.method, c.basis, i+1, scaled, experiment[i])
+			}
+		}
+		for _, r := range a.RigidBodyCm1 {
+			if math.Abs(r) > 10 {
+				t.Errorf("%s/%s: rigid-body root %.2f cm⁻¹, want within 10 of zero", c.method, c.basis, r)
+			}
+		}
+	}
+}

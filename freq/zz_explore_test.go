@@ -1,0 +1,29 @@
+package freq
+
+import (
+	"context"
+	"testing"
+
+	"poise/energy/basis"
+	"poise/energy/scf"
+	"poise/energy/xc"
+	"poise/gradient"
+)
+
+func TestZZRigid(t *testing.T) {
+	m := buildMolecule(t, waterStart)
+	_, _, x := relaxedModes(t, m, "hf", "sto-3g", "", "")
+	set, _ := basis.Load("sto-3g")
+	fn, _ := xc.Lookup("hf")
+	for _, gt := range []float64{1e-7, 1e-9} {
+		for _, c := range []struct{ step float64; four bool }{{0.005, false}, {0.005, true}, {0.002, false}, {0.01, false}, {0.01, true}} {
+			s, _ := gradient.NewSCFSurface(m, gradient.Config{Basis: set, Method: fn, SCF: scf.Options{Threads: 2, GradientTolerance: gt, EnergyTolerance: 1e-12}})
+			h, err := ComputeHessian(context.Background(), s, x, HessianOptions{Threads: 2, StepBohr: c.step, FourPoint: c.four})
+			if err != nil {
+				t.Fatal(err)
+			}
+			a, _ := Analyze(System{MassesU: massesOf(m), CoordsBohr: x, HessianAU: h.HessianAU})
+			t.Logf("gtol %g step %g four %v: %.3f  rigid %.3f asym %.1e", gt, c.step, c.four, wavenumbers(a), a.RigidBodyCm1, h.AsymmetryAU)
+		}
+	}
+}
