@@ -447,7 +447,7 @@ func (m modelSurface) Evaluate(_ context.Context, x []float64, req Request, out 
 
 // TestNumericModel checks the central differences against the closed-form
 // derivative of a model potential (the reference is calculus; the
-// truncation error h²/6·E''' with h = 1e-4 bohr is below 1e-9 here) for
+// truncation error h²/6·E”' with h = 1e-4 bohr is below 1e-9 here) for
 // several thread counts, which must give the same result.
 func TestNumericModel(t *testing.T) {
 	ms := modelSurface{n: 4}

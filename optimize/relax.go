@@ -60,7 +60,16 @@ type Options struct {
 	Cartesian bool
 	// Progress, if set, is called after every evaluated geometry.
 	Progress func(Step)
+
+	tune *tuning
 }
+
+type tuning struct {
+	trust0, rejectShrink, lowShrink, lowRatio, highRatio, grow, rejectRise float64
+	shrinkOfR                                                              bool
+}
+
+var defaultTuning = tuning{trust0: 0.3, rejectShrink: 0.25, lowShrink: 0.5, lowRatio: 0.25, highRatio: 0.75, grow: 2, rejectRise: 1e-6}
 
 // Step describes one evaluated geometry of a relaxation.
 type Step struct {
@@ -184,6 +193,9 @@ func newRelaxer(s gradient.Surface, z []int, x []float64, opt Options) (*relaxer
 	}
 	if r.trust == 0 {
 		r.trust = DefaultTrustRadius
+		if opt.tune != nil {
+			r.trust = opt.tune.trust0
+		}
 	}
 	if !(r.trust > 0) || r.trust > maxTrustRadius {
 		return nil, fmt.Errorf("optimize: trust radius %g outside (0, %g]", r.trust, maxTrustRadius)
@@ -976,18 +988,26 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 		steps++
 		r.update(x, g, prop.x, g1)
 		dE1 := e1 - energy
-		rejected := dE1 > rejectRiseHartree && r.trust > minTrustRadius
+		tu := defaultTuning
+		if r.opt.tune != nil {
+			tu = *r.opt.tune
+		}
+		rejected := dE1 > tu.rejectRise && r.trust > minTrustRadius
 		switch {
 		case rejected:
-			r.trust = math.Max(minTrustRadius, 0.25*math.Min(r.trust, prop.norm))
+			r.trust = math.Max(minTrustRadius, tu.rejectShrink*math.Min(r.trust, prop.norm))
 		case math.Abs(prop.pred) < 1e-10 && math.Abs(dE1) < 1e-10:
 			// Both changes at the level of numerical noise.
 		default:
 			ratio := dE1 / prop.pred
-			if ratio < 0.25 {
-				r.trust = math.Max(minTrustRadius, 0.5*math.Min(r.trust, prop.norm))
-			} else if ratio > 0.75 && prop.norm > 0.8*r.trust {
-				r.trust = math.Min(maxTrustRadius, 2*r.trust)
+			if ratio < tu.lowRatio {
+				if tu.shrinkOfR {
+					r.trust = math.Max(minTrustRadius, tu.lowShrink*r.trust)
+				} else {
+					r.trust = math.Max(minTrustRadius, tu.lowShrink*math.Min(r.trust, prop.norm))
+				}
+			} else if ratio > tu.highRatio && prop.norm > 0.8*r.trust {
+				r.trust = math.Min(maxTrustRadius, tu.grow*r.trust)
 			}
 		}
 		if rejected {

@@ -35,7 +35,10 @@ func newRootCmd() *cobra.Command {
 		newBasisCmd(),
 		newEnergyCmd(),
 		newGradientCmd(),
+		newRelaxCmd(),
 		newThermoCmd(),
+		newDispersionCmd(),
+		newModesCmd(),
 	)
 	return root
 }

@@ -105,13 +105,14 @@ func (p *Potential) Gradient(ctx context.Context, dens [][]float64, natoms int) 
 
 // gradWorkspace is per-goroutine scratch of the gradient.
 type gradWorkspace struct {
-	phi  []float64    // np×m values
-	d1   [3][]float64 // np×m first derivatives x, y, z
-	d2   [6][]float64 // np×m second derivatives xx, xy, xz, yy, yz, zz
-	cart []float64
-	dsub []float64
-	u, t []float64 // np×m
-	zp   []float64 // np×m
+	phi    []float64    // np×m values
+	d1     [3][]float64 // np×m first derivatives x, y, z
+	d2     [6][]float64 // np×m second derivatives xx, xy, xz, yy, yz, zz
+	cart   []float64
+	dsub   []float64
+	u, t   []float64 // np×m
+	zp     []float64 // np×m
+	colSum []float64 // 3m
 }
 
 // hessIndex maps (j, k) to the packed index of ∂_j∂_k in gradWorkspace.d2.
@@ -260,73 +261,63 @@ func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, out [
 		}
 	}
 
-	// Fixed-point derivatives per function, gathered per atom.
-	perAtom := make(map[int][3]float64, 4)
+	// Fixed-point derivatives per function: colSum[3c+j] accumulates
+	// Σ_p [∂_jφ_pc T_pc + Σ_k b_pk ∂_j∂_kφ_pc U_pc] over points and spins,
+	// point by point along the rows of the row-major blocks.
 	ws.zp = grow(ws.zp, np*m)
 	ws.t = grow(ws.t, np*m)
-	colSum := make([][3]float64, m)
+	ws.colSum = grow(ws.colSum, 3*m)
+	colSum := ws.colSum
 	for s := 0; s < nspin; s++ {
 		// Z'_pν = a_p φ_pν + Σ_k b_pk ∂_kφ_pν; T = Z' D.
 		for pt := 0; pt < np; pt++ {
 			a := coefA[s][pt]
 			zr := ws.zp[pt*m : pt*m+m]
 			pr := ws.phi[pt*m : pt*m+m]
-			for c := range zr {
-				zr[c] = a * pr[c]
-			}
 			if gga {
-				for k := 0; k < 3; k++ {
-					bk := coefB[s][k][pt]
-					dr := ws.d1[k][pt*m : pt*m+m]
-					for c := range zr {
-						zr[c] += bk * dr[c]
-					}
+				b0, b1, b2 := coefB[s][0][pt], coefB[s][1][pt], coefB[s][2][pt]
+				xr, yr, zz := ws.d1[0][pt*m:pt*m+m], ws.d1[1][pt*m:pt*m+m], ws.d1[2][pt*m:pt*m+m]
+				for c := range zr {
+					zr[c] = a*pr[c] + b0*xr[c] + b1*yr[c] + b2*zz[c]
+				}
+			} else {
+				for c := range zr {
+					zr[c] = a * pr[c]
 				}
 			}
 		}
 		mat.NewDense(np, m, ws.t).Mul(mat.NewDense(np, m, ws.zp), mat.NewDense(m, m, dsubs[s]))
 		u := us[s]
-		for c := 0; c < m; c++ {
-			var gj [3]float64
-			for pt := 0; pt < np; pt++ {
-				i := pt*m + c
-				tv := ws.t[i]
-				for j := 0; j < 3; j++ {
-					gj[j] += ws.d1[j][i] * tv
+		for pt := 0; pt < np; pt++ {
+			lo, hi := pt*m, pt*m+m
+			tr := ws.t[lo:hi]
+			xr, yr, zr := ws.d1[0][lo:hi], ws.d1[1][lo:hi], ws.d1[2][lo:hi]
+			if !gga {
+				for c, tv := range tr {
+					cs := colSum[3*c : 3*c+3]
+					cs[0] += xr[c] * tv
+					cs[1] += yr[c] * tv
+					cs[2] += zr[c] * tv
 				}
-				if gga {
-					uv := u[i]
-					if uv == 0 {
-						continue
-					}
-					b0, b1, b2 := coefB[s][0][pt], coefB[s][1][pt], coefB[s][2][pt]
-					for j := 0; j < 3; j++ {
-						h := hessIndex[j]
-						gj[j] += uv * (b0*ws.d2[h[0]][i] + b1*ws.d2[h[1]][i] + b2*ws.d2[h[2]][i])
-					}
-				}
+				continue
 			}
-			for j := 0; j < 3; j++ {
-				colSum[c][j] += gj[j]
+			b0, b1, b2 := coefB[s][0][pt], coefB[s][1][pt], coefB[s][2][pt]
+			ur := u[lo:hi]
+			hxx, hxy, hxz := ws.d2[0][lo:hi], ws.d2[1][lo:hi], ws.d2[2][lo:hi]
+			hyy, hyz, hzz := ws.d2[3][lo:hi], ws.d2[4][lo:hi], ws.d2[5][lo:hi]
+			for c, tv := range tr {
+				uv := ur[c]
+				cs := colSum[3*c : 3*c+3]
+				cs[0] += xr[c]*tv + uv*(b0*hxx[c]+b1*hxy[c]+b2*hxz[c])
+				cs[1] += yr[c]*tv + uv*(b0*hxy[c]+b1*hyy[c]+b2*hyz[c])
+				cs[2] += zr[c]*tv + uv*(b0*hxz[c]+b1*hyz[c]+b2*hzz[c])
 			}
 		}
 	}
 	for c := 0; c < m; c++ {
 		a := fnAtom[c]
-		v := perAtom[a]
 		for j := 0; j < 3; j++ {
-			v[j] += -2 * colSum[c][j]
-		}
-		perAtom[a] = v
-	}
-	// Add in a fixed order (atoms ascending) for reproducibility.
-	for a := 0; a < len(out)/3; a++ {
-		v, ok := perAtom[a]
-		if !ok {
-			continue
-		}
-		for j := 0; j < 3; j++ {
-			out[3*a+j] += v[j]
+			out[3*a+j] -= 2 * colSum[3*c+j]
 		}
 	}
 }

@@ -293,7 +293,11 @@ func (bt *derivBatch) fill(bra, ket *derivPair, list [][2]int32, Lm int) {
 		pq := [3]float64{p.p[0] - q.p[0], p.p[1] - q.p[1], p.p[2] - q.p[2]}
 		t := rho * (pq[0]*pq[0] + pq[1]*pq[1] + pq[2]*pq[2])
 		pref := p.k * q.k * math.Sqrt(ozn)
-		Boys(Lm, t, bt.boys[:])
+		if Lm <= eriBoysMaxM {
+			eriBoysInline(Lm, t, bt.boys[:]) // the energy engine's tabulated Taylor series
+		} else {
+			Boys(Lm, t, bt.boys[:])
+		}
 		for m := 0; m <= Lm; m++ {
 			bt.F[m*nb+x] = bt.boys[m] * pref
 		}
@@ -338,6 +342,8 @@ func derivVRR(V []float64, off, eLo []int, lab1, lcd1, Lm, neAll, nb int, bt *de
 			for m := 0; m <= mmax; m++ {
 				dst, s1, s1p := vec(m*neAll+n), vec(m*neAll+n1), vec((m+1)*neAll+n1)
 				s2, s2p := vec(m*neAll+n2), vec((m+1)*neAll+n2)
+				pa, wp, oo2z, rz := pa[:len(dst)], wp[:len(dst)], oo2z[:len(dst)], rz[:len(dst)]
+				s1, s1p, s2, s2p = s1[:len(dst)], s1p[:len(dst)], s2[:len(dst)], s2p[:len(dst)]
 				for x := range dst {
 					dst[x] = pa[x]*s1[x] + wp[x]*s1p[x] + c1*oo2z[x]*(s2[x]-rz[x]*s2p[x])
 				}
@@ -345,6 +351,8 @@ func derivVRR(V []float64, off, eLo []int, lab1, lcd1, Lm, neAll, nb int, bt *de
 		} else {
 			for m := 0; m <= mmax; m++ {
 				dst, s1, s1p := vec(m*neAll+n), vec(m*neAll+n1), vec((m+1)*neAll+n1)
+				pa, wp := pa[:len(dst)], wp[:len(dst)]
+				s1, s1p = s1[:len(dst)], s1p[:len(dst)]
 				for x := range dst {
 					dst[x] = pa[x]*s1[x] + wp[x]*s1p[x]
 				}
@@ -384,23 +392,36 @@ func derivVRR(V []float64, off, eLo []int, lab1, lcd1, Lm, neAll, nb int, bt *de
 				base := off[k] + (fc*nmk+m)*neAll
 				for n := e0; n < e1; n++ {
 					dst := vec(base + n)
-					s1, s1p := vec(l1+m*neAll+n), vec(l1+(m+1)*neAll+n)
-					if l2 >= 0 {
-						s2, s2p := vec(l2+m*neAll+n), vec(l2+(m+1)*neAll+n)
+					nd := len(dst)
+					s1, s1p := vec(l1 + m*neAll + n)[:nd], vec(l1 + (m+1)*neAll + n)[:nd]
+					qc, wq := qc[:nd], wq[:nd]
+					te := &eriCartTab[n]
+					ni := te.n[i]
+					switch {
+					case l2 >= 0 && ni > 0:
+						s2, s2p := vec(l2 + m*neAll + n)[:nd], vec(l2 + (m+1)*neAll + n)[:nd]
+						s3p := vec(l1 + (m+1)*neAll + int(te.minus[i]))[:nd]
+						oo2e, re, oo2zn := oo2e[:nd], re[:nd], oo2zn[:nd]
+						fn := float64(ni)
+						for x := range dst {
+							dst[x] = qc[x]*s1[x] + wq[x]*s1p[x] + a*oo2e[x]*(s2[x]-re[x]*s2p[x]) + fn*oo2zn[x]*s3p[x]
+						}
+					case l2 >= 0:
+						s2, s2p := vec(l2 + m*neAll + n)[:nd], vec(l2 + (m+1)*neAll + n)[:nd]
+						oo2e, re := oo2e[:nd], re[:nd]
 						for x := range dst {
 							dst[x] = qc[x]*s1[x] + wq[x]*s1p[x] + a*oo2e[x]*(s2[x]-re[x]*s2p[x])
 						}
-					} else {
-						for x := range dst {
-							dst[x] = qc[x]*s1[x] + wq[x]*s1p[x]
-						}
-					}
-					te := &eriCartTab[n]
-					if ni := te.n[i]; ni > 0 {
-						s3p := vec(l1 + (m+1)*neAll + int(te.minus[i]))
+					case ni > 0:
+						s3p := vec(l1 + (m+1)*neAll + int(te.minus[i]))[:nd]
+						oo2zn := oo2zn[:nd]
 						fn := float64(ni)
 						for x := range dst {
-							dst[x] += fn * oo2zn[x] * s3p[x]
+							dst[x] = qc[x]*s1[x] + wq[x]*s1p[x] + fn*oo2zn[x]*s3p[x]
+						}
+					default:
+						for x := range dst {
+							dst[x] = qc[x]*s1[x] + wq[x]*s1p[x]
 						}
 					}
 				}
@@ -425,6 +446,20 @@ func derivAccumulate(accs [3][]float64, ws [3][]float64, nacc int, V []float64, 
 			for n := e0; n < e1; n++ {
 				idx := off[k] + fc*nmk*neAll + n
 				v := V[idx*nb : idx*nb+nb]
+				if nacc == 3 && ws[0] == nil {
+					// Unweighted, 2α- and 2β-weighted sums in one pass.
+					w1, w2 := ws[1][:len(v)], ws[2][:len(v)]
+					var s0, s1, s2 float64
+					for x, y := range v {
+						s0 += y
+						s1 += w1[x] * y
+						s2 += w2[x] * y
+					}
+					accs[0][row*ne+n-e0] += s0
+					accs[1][row*ne+n-e0] += s1
+					accs[2][row*ne+n-e0] += s2
+					continue
+				}
 				for a := 0; a < nacc; a++ {
 					var s float64
 					if w := ws[a]; w != nil {

@@ -413,13 +413,12 @@ func (e *ERIEngine) finish(w *ERIWorkspace, cart []float64, sh, pos [4]int) []fl
 	// scatter over the others.
 	var ax [4]eriAxis
 	k := 0
-	srcStride := total
+	ss := [4]int{n[1] * n[2] * n[3], n[2] * n[3], n[3], 1} // source strides
 	for x := 0; x < 4; x++ {
-		srcStride /= n[x]
 		if n[x] == 1 {
 			continue
 		}
-		ax[k] = eriAxis{n: n[x], src: srcStride, out: rs[pos[x]], scale: eriScale(in[x], n[x])}
+		ax[k] = eriAxis{n: n[x], src: ss[x], out: rs[pos[x]], scale: eriScale(in[x], n[x])}
 		k++
 	}
 	switch k {

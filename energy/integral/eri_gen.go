@@ -51,8 +51,10 @@ func eriGen0000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 			}
@@ -88,9 +90,11 @@ func eriGen1000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[16]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
-				f1 = pref * (c[8] + d*(c[9]+d*(c[10]+d*(c[11]+d*(c[12]+d*(c[13]+d*(c[14]+d*(c[15]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
+				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 				h := 0.5 / t
@@ -137,10 +141,12 @@ func eriGen1010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[24]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
-				f1 = pref * (c[8] + d*(c[9]+d*(c[10]+d*(c[11]+d*(c[12]+d*(c[13]+d*(c[14]+d*(c[15]))))))))
-				f2 = pref * (c[16] + d*(c[17]+d*(c[18]+d*(c[19]+d*(c[20]+d*(c[21]+d*(c[22]+d*(c[23]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
+				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
+				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 				h := 0.5 / t
@@ -214,10 +220,12 @@ func eriGen1100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[24]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
-				f1 = pref * (c[8] + d*(c[9]+d*(c[10]+d*(c[11]+d*(c[12]+d*(c[13]+d*(c[14]+d*(c[15]))))))))
-				f2 = pref * (c[16] + d*(c[17]+d*(c[18]+d*(c[19]+d*(c[20]+d*(c[21]+d*(c[22]+d*(c[23]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
+				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
+				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 				h := 0.5 / t
@@ -302,11 +310,13 @@ func eriGen1110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[32]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
-				f1 = pref * (c[8] + d*(c[9]+d*(c[10]+d*(c[11]+d*(c[12]+d*(c[13]+d*(c[14]+d*(c[15]))))))))
-				f2 = pref * (c[16] + d*(c[17]+d*(c[18]+d*(c[19]+d*(c[20]+d*(c[21]+d*(c[22]+d*(c[23]))))))))
-				f3 = pref * (c[24] + d*(c[25]+d*(c[26]+d*(c[27]+d*(c[28]+d*(c[29]+d*(c[30]+d*(c[31]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
+				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
+				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
+				f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 				h := 0.5 / t
@@ -490,8 +500,10 @@ func eriGen1111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -947,10 +959,12 @@ func eriGen2000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[24]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
-				f1 = pref * (c[8] + d*(c[9]+d*(c[10]+d*(c[11]+d*(c[12]+d*(c[13]+d*(c[14]+d*(c[15]))))))))
-				f2 = pref * (c[16] + d*(c[17]+d*(c[18]+d*(c[19]+d*(c[20]+d*(c[21]+d*(c[22]+d*(c[23]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
+				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
+				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 				h := 0.5 / t
@@ -1012,11 +1026,13 @@ func eriGen2010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[32]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
-				f1 = pref * (c[8] + d*(c[9]+d*(c[10]+d*(c[11]+d*(c[12]+d*(c[13]+d*(c[14]+d*(c[15]))))))))
-				f2 = pref * (c[16] + d*(c[17]+d*(c[18]+d*(c[19]+d*(c[20]+d*(c[21]+d*(c[22]+d*(c[23]))))))))
-				f3 = pref * (c[24] + d*(c[25]+d*(c[26]+d*(c[27]+d*(c[28]+d*(c[29]+d*(c[30]+d*(c[31]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
+				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
+				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
+				f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 				h := 0.5 / t
@@ -1126,8 +1142,10 @@ func eriGen2011(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -1415,8 +1433,10 @@ func eriGen2020(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -1630,11 +1650,13 @@ func eriGen2100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[32]float64)(eriBoysTab[k*eriBoysRow:])
-				f0 = pref * (c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7]))))))))
-				f1 = pref * (c[8] + d*(c[9]+d*(c[10]+d*(c[11]+d*(c[12]+d*(c[13]+d*(c[14]+d*(c[15]))))))))
-				f2 = pref * (c[16] + d*(c[17]+d*(c[18]+d*(c[19]+d*(c[20]+d*(c[21]+d*(c[22]+d*(c[23]))))))))
-				f3 = pref * (c[24] + d*(c[25]+d*(c[26]+d*(c[27]+d*(c[28]+d*(c[29]+d*(c[30]+d*(c[31]))))))))
+				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
+				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
+				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
+				f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 				h := 0.5 / t
@@ -1762,8 +1784,10 @@ func eriGen2110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -2082,8 +2106,10 @@ func eriGen2111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+40:])
-				f5 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f5 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f4 = (t2*f5 + ex) * 0.1111111111111111
@@ -2894,8 +2920,10 @@ func eriGen2120(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+40:])
-				f5 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f5 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f4 = (t2*f5 + ex) * 0.1111111111111111
@@ -3547,8 +3575,10 @@ func eriGen2121(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+48:])
-				f6 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f6 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f5 = (t2*f6 + ex) * 0.090909090909090912
@@ -5077,8 +5107,10 @@ func eriGen2200(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -5341,8 +5373,10 @@ func eriGen2210(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+40:])
-				f5 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f5 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f4 = (t2*f5 + ex) * 0.1111111111111111
@@ -6035,8 +6069,10 @@ func eriGen2211(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+48:])
-				f6 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f6 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f5 = (t2*f6 + ex) * 0.090909090909090912
@@ -7935,8 +7971,10 @@ func eriGen2220(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+48:])
-				f6 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f6 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f5 = (t2*f6 + ex) * 0.090909090909090912
@@ -9394,8 +9432,10 @@ func eriGen2221(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+56:])
-				f7 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f7 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f6 = (t2*f7 + ex) * 0.076923076923076927
@@ -12976,8 +13016,10 @@ func eriGen2222(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			if t < eriBoysTMax {
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
+				d2 := d * d
+				d4 := d2 * d2
 				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+64:])
-				f8 = c[0] + d*(c[1]+d*(c[2]+d*(c[3]+d*(c[4]+d*(c[5]+d*(c[6]+d*(c[7])))))))
+				f8 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f7 = (t2*f8 + ex) * 0.066666666666666666

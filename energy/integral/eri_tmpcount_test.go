@@ -29,3 +29,10 @@ func TestTmpCPU(t *testing.T) {
 	sort.Float64s(ds)
 	t.Logf("cpu min %.3f median %.3f checksum %.12f", ds[0], ds[4], sum)
 }
+
+func TestTmpOnce(t *testing.T) {
+	e := NewERI(NewBasis(eriBenzeneShells(t)))
+	w := e.NewWorkspace()
+	_, sum := eriAllUnique(e, w)
+	t.Logf("checksum %.12f", sum)
+}

@@ -95,3 +95,46 @@ func TestDerivativeAvailability(t *testing.T) {
 		t.Logf("one-electron derivatives unavailable in this libint2 build: %v", err)
 	}
 }
+
+// The bulk benchmark entry point covers exactly the unique quartets and
+// converts like ERI: its count and checksum equal those accumulated from
+// ERI quartet by quartet.
+func TestERIAllUniqueMatchesERI(t *testing.T) {
+	shells := []Shell{
+		{L: 0, Center: [3]float64{0, 0, 0}, Exponents: []float64{3.4, 0.6}, Coefficients: []float64{0.4, 0.7}},
+		{L: 1, Center: [3]float64{0, 0, 1.4}, Exponents: []float64{1.1}, Coefficients: []float64{1}},
+		{L: 2, Center: [3]float64{0.5, -0.3, 0.2}, Exponents: []float64{0.8}, Coefficients: []float64{1}},
+		{L: 2, Pure: true, Center: [3]float64{-0.5, 0.3, 0.9}, Exponents: []float64{1.3, 0.4}, Coefficients: []float64{0.5, 0.6}},
+	}
+	count, sum := 0, 0.0
+	for i := range shells {
+		for j := 0; j <= i; j++ {
+			for k := 0; k <= i; k++ {
+				lmax := k
+				if k == i {
+					lmax = j
+				}
+				for l := 0; l <= lmax; l++ {
+					v := ERI(shells[i], shells[j], shells[k], shells[l])
+					count += len(v)
+					for _, x := range v {
+						sum += x
+					}
+				}
+			}
+		}
+	}
+	gotCount, gotSum := ERIAllUnique(shells)
+	if gotCount != count || math.Abs(gotSum-sum) > 1e-12*math.Abs(sum) {
+		t.Errorf("ERIAllUnique = (%d, %.15g), quartet by quartet (%d, %.15g)", gotCount, gotSum, count, sum)
+	}
+}
+
+// Angular momenta beyond the libint2 build are reported, not fatal.
+func TestBeyondBuildLimits(t *testing.T) {
+	h := Shell{L: 5, Center: [3]float64{0, 0, 0.5}, Exponents: []float64{1}, Coefficients: []float64{1}}
+	s := Shell{L: 0, Exponents: []float64{1}, Coefficients: []float64{1}}
+	if _, err := ERIDeriv1(h, s, s, s); err == nil {
+		t.Errorf("ERI derivatives with l = 5: no error, but the build stops at l = 4")
+	}
+}

@@ -36,7 +36,7 @@ const boysDirectMax = 3
 
 // estrin selects Estrin's scheme rather than Horner's rule for the Taylor
 // polynomials of the Boys function.
-const estrin = false
+const estrin = true
 
 type vec [3]int
 
