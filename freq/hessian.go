@@ -16,7 +16,7 @@ import (
 // stretches) and a rounding error ε_g/h from the gradient noise ε_g: SCF
 // gradients converged to ~1e-7 Eh/bohr give ~2e-5 Eh/bohr², a fraction of
 // a wavenumber even for soft modes (common practice: 0.001–0.01 bohr).
-const DefaultStepBohr = 0.005
+const DefaultStepBohr = 0.0025
 
 // maxStepBohr bounds the step: beyond it the harmonic picture of a
 // displacement is lost.

@@ -30,6 +30,8 @@ type energyReport struct {
 	NuclearRepulsionHartree  float64      `json:"nuclear_repulsion_hartree"`
 	OneElectronHartree       float64      `json:"one_electron_energy_hartree"`
 	TwoElectronHartree       float64      `json:"two_electron_energy_hartree"`
+	DispersionHartree        float64      `json:"dispersion_energy_hartree"`
+	LevelOfTheory            string       `json:"level_of_theory"`
 	XCHartree                float64      `json:"exchange_correlation_hartree,omitempty"`
 	IntegratedElectrons      float64      `json:"integrated_electrons,omitempty"`
 	GridLevel                int          `json:"grid_level,omitempty"`
@@ -80,6 +82,12 @@ func newEnergyCmd() *cobra.Command {
 				return runErr
 			}
 			rep := makeEnergyReport(args[0], s, res, lf.threads)
+			ed, err := s.dispersionEnergy()
+			if err != nil {
+				return err
+			}
+			rep.DispersionHartree = ed
+			rep.EnergyHartree += ed
 			out := cmd.OutOrStdout()
 			if asJSON {
 				enc := json.NewEncoder(out)
@@ -114,6 +122,7 @@ func makeEnergyReport(path string, s *setup, res *scf.Result, threads int) *ener
 		File:                    path,
 		Formula:                 s.mol.Formula(),
 		Method:                  s.method,
+		LevelOfTheory:           s.label(),
 		Basis:                   s.set.Name,
 		Functions:               conv,
 		Charge:                  s.mol.Charge,
@@ -162,8 +171,8 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 	if rep.Unrestricted {
 		kind = "unrestricted"
 	}
-	fmt.Fprintf(w, "%s  %s/%s (%s, %s functions)  charge %d  multiplicity %d\n",
-		rep.Formula, strings.ToUpper(rep.Method), rep.Basis, kind, rep.Functions, rep.Charge, rep.Multiplicity)
+	fmt.Fprintf(w, "%s  %s (%s, %s functions)  charge %d  multiplicity %d\n",
+		rep.Formula, rep.LevelOfTheory, kind, rep.Functions, rep.Charge, rep.Multiplicity)
 	storage := "integral-direct"
 	if rep.IntegralsInMemory {
 		storage = "integrals in memory"
@@ -183,6 +192,9 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 		{"nuclear repulsion", fmt.Sprintf("%.10f", rep.NuclearRepulsionHartree), fmt.Sprintf("%.6f", rep.NuclearRepulsionHartree*units.HartreeEV)},
 		{"one-electron", fmt.Sprintf("%.10f", rep.OneElectronHartree), fmt.Sprintf("%.6f", rep.OneElectronHartree*units.HartreeEV)},
 		{"two-electron", fmt.Sprintf("%.10f", rep.TwoElectronHartree), fmt.Sprintf("%.6f", rep.TwoElectronHartree*units.HartreeEV)},
+	}
+	if rep.LevelOfTheory != "" && strings.Contains(rep.LevelOfTheory, "-D3(BJ)") {
+		rows = append(rows, []string{"dispersion D3(BJ)", fmt.Sprintf("%.10f", rep.DispersionHartree), fmt.Sprintf("%.6f", rep.DispersionHartree*units.HartreeEV)})
 	}
 	if rep.GridPoints > 0 {
 		rows = append(rows, []string{"exchange–correlation", fmt.Sprintf("%.10f", rep.XCHartree), fmt.Sprintf("%.6f", rep.XCHartree*units.HartreeEV)})

@@ -13,6 +13,7 @@ import (
 
 	"poise/energy/basis"
 	"poise/energy/dft"
+	"poise/energy/dispersion"
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/molecule"
@@ -34,6 +35,7 @@ type levelFlags struct {
 	memory       string
 	maxIter      int
 	gridLevel    int
+	dispersion   string
 }
 
 func (f *levelFlags) register(cmd *cobra.Command) {
@@ -48,6 +50,7 @@ func (f *levelFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.threads, "threads", runtime.NumCPU(), "number of threads")
 	fl.StringVar(&f.memory, "memory", "2GiB", "memory budget (e.g. 800MiB, 4GiB); integrals are kept in memory when they fit, and Go's memory limit is set to it")
 	fl.IntVar(&f.maxIter, "max-iterations", scf.DefaultMaxIterations, "largest number of SCF iterations")
+	fl.StringVar(&f.dispersion, "dispersion", "none", "empirical dispersion correction: none or d3bj (Grimme's D3 with Becke–Johnson damping)")
 	fl.IntVar(&f.gridLevel, "grid", grid.DefaultLevel, "DFT integration grid level, 1 (coarse) to 5 (finest)")
 }
 
@@ -85,6 +88,31 @@ type setup struct {
 	fn        *xc.Functional
 	gridLevel int
 	grid      *grid.Grid
+	// dispersion holds the D3(BJ) parameters when the correction is on.
+	dispersion *dispersion.Params
+}
+
+// label is the level of theory as printed and stored, e.g.
+// "B3LYP-D3(BJ)/6-31G*".
+func (s *setup) label() string {
+	m := strings.ToUpper(s.method)
+	if s.dispersion != nil {
+		m += "-D3(BJ)"
+	}
+	return m + "/" + s.set.Name
+}
+
+// dispersionEnergy returns the D3(BJ) correction for the molecule (zero
+// when it is off).
+func (s *setup) dispersionEnergy() (float64, error) {
+	if s.dispersion == nil {
+		return 0, nil
+	}
+	r, err := dispersion.ForMolecule(s.mol, *s.dispersion, false)
+	if err != nil {
+		return 0, usageErr(err)
+	}
+	return r.EnergyHartree, nil
 }
 
 // prepare reads the molecule and checks the level of theory. Every problem
@@ -107,6 +135,18 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 	method := fn.Name()
 	if _, err := grid.LevelInfo(f.gridLevel); err != nil {
 		return nil, usageErr(fmt.Errorf("--grid %d: give a level from 1 (coarse) to 5 (finest)", f.gridLevel))
+	}
+	var disp *dispersion.Params
+	switch strings.ToLower(f.dispersion) {
+	case "", "none":
+	case "d3bj", "d3(bj)":
+		p, err := dispersion.ParamsFor(method)
+		if err != nil {
+			return nil, usageErr(fmt.Errorf("--dispersion d3bj: %w", err))
+		}
+		disp = &p
+	default:
+		return nil, usageErr(fmt.Errorf("--dispersion %q: give none or d3bj", f.dispersion))
 	}
 	mol, err := molecule.ReadXYZFile(path)
 	if err != nil {
@@ -143,8 +183,9 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 			Threads:       f.threads,
 			MemoryBytes:   mem,
 		},
-		fn:        fn,
-		gridLevel: f.gridLevel,
+		fn:         fn,
+		gridLevel:  f.gridLevel,
+		dispersion: disp,
 	}
 	return st, nil
 }
