@@ -10,7 +10,7 @@
 // # Hessian
 //
 // ComputeHessian displaces every Cartesian coordinate by ±h (default
-// DefaultStepBohr = 0.005 bohr) and differentiates the analytic gradients,
+// DefaultStepBohr = 0.0025 bohr) and differentiates the analytic gradients,
 //
 //	H_ij = (g_j(x + h e_i) − g_j(x − h e_i)) / 2h,
 //
@@ -22,7 +22,9 @@
 // points. The 6N (12N) displaced points are independent: k run at once,
 // sharing the thread budget (Threads/k threads each), all warm-started
 // from the reference density (Request.KeepWarmStart), so the result does
-// not depend on the order or the thread count. With a work directory each
+// not depend on the order or the thread count. The surface should converge
+// its SCF to SCFGradientTolerance: the differences amplify gradient noise
+// by 1/2h. With a work directory each
 // finished point is saved as a small JSON file (temporary file and
 // rename), and an interrupted run resumes with what is saved.
 //

@@ -80,7 +80,7 @@ func TestConversions(t *testing.T) {
 	const kMdyn = 5.0
 	kAU := kMdyn / mdynPerAngstromPerAU()
 	m1, m2 := 1.00782503, 34.96885268 // u
-	mu := m1 * m2 / (m1 + m2) // the reduced mass of the two-body problem
+	mu := m1 * m2 / (m1 + m2)         // the reduced mass of the two-body problem
 	r := 2.4
 	hess := make([]float64, 36)
 	for i := 0; i < 3; i++ {

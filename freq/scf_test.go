@@ -6,14 +6,13 @@ import (
 	"sort"
 	"testing"
 
-	"gonum.org/v1/gonum/mat"
-
 	"poise/energy/basis"
 	"poise/energy/molecule"
 	"poise/energy/scf"
 	"poise/energy/units"
 	"poise/energy/xc"
 	"poise/gradient"
+	"poise/optimize"
 )
 
 // atomSpec is an atom of a test molecule, position in Å.
@@ -49,137 +48,29 @@ func scfSurface(t testing.TB, m *molecule.Molecule, method, basisName string, th
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := gradient.NewSCFSurface(m, gradient.Config{Basis: set, Method: fn, SCF: scf.Options{Threads: threads}})
+	s, err := gradient.NewSCFSurface(m, gradient.Config{Basis: set, Method: fn, SCF: scf.Options{Threads: threads, GradientTolerance: SCFGradientTolerance}})
 	if err != nil {
 		t.Fatal(err)
 	}
 	return s
 }
 
-// relaxTol is the gradient norm (Eh/bohr, translations and rotations
-// removed) at which the test relaxation stops: far tighter than a report
-// geometry, as a frequency analysis wants.
-const relaxTol = 2e-6
-
-// relax minimizes the energy of s from x with quasi-Newton (BFGS) steps in
-// Cartesian coordinates, starting from the Hessian h0 (the relaxation is
-// the test's tool, not under test; the checks below hold only at a
-// stationary point).
-func relax(t testing.TB, s gradient.Surface, x, h0 []float64) []float64 {
-	t.Helper()
-	n := len(x)
-	x = append([]float64(nil), x...)
-	b := mat.NewSymDense(n, nil)
-	for i := 0; i < n; i++ {
-		for j := i; j < n; j++ {
-			b.SetSym(i, j, 0.5*(h0[i*n+j]+h0[j*n+i]))
-		}
-	}
-	var pt gradient.Point
-	eval := func(x []float64) []float64 {
-		pt.Gradient = nil
-		if err := s.Evaluate(context.Background(), x, gradient.Request{Gradient: true, Threads: 2}, &pt); err != nil {
-			t.Fatal(err)
-		}
-		return pt.Gradient
-	}
-	g := eval(x)
-	unit := make([]float64, n/3)
-	for i := range unit {
-		unit[i] = 1
-	}
-	for it := 0; it < 60; it++ {
-		ext, _ := externalBasis(unit, x)
-		proj := func(v []float64) []float64 {
-			v = append([]float64(nil), v...)
-			for _, e := range ext {
-				d := dot(v, e)
-				for i := range v {
-					v[i] -= d * e[i]
-				}
-			}
-			return v
-		}
-		gp := proj(g)
-		if math.Sqrt(dot(gp, gp)) < relaxTol {
-			return x
-		}
-		// Step −B⁺g within the internal space (eigenvalues kept positive).
-		var es mat.EigenSym
-		if !es.Factorize(b, true) {
-			t.Fatal("relax: eigen-decomposition failed")
-		}
-		vals := es.Values(nil)
-		var vec mat.Dense
-		es.VectorsTo(&vec)
-		step := make([]float64, n)
-		for k := 0; k < n; k++ {
-			v := make([]float64, n)
-			for i := range v {
-				v[i] = vec.At(i, k)
-			}
-			vi := proj(v)
-			if dot(vi, vi) < 0.5 { // a rigid-body direction
-				continue
-			}
-			c := dot(v, gp) / math.Max(math.Abs(vals[k]), 1e-3)
-			for i := range step {
-				step[i] -= c * v[i]
-			}
-		}
-		step = proj(step)
-		if l := math.Sqrt(dot(step, step)); l > 0.3 {
-			for i := range step {
-				step[i] *= 0.3 / l
-			}
-		}
-		xn := make([]float64, n)
-		for i := range xn {
-			xn[i] = x[i] + step[i]
-		}
-		gn := eval(xn)
-		y := make([]float64, n)
-		for i := range y {
-			y[i] = gn[i] - g[i]
-		}
-		ys := dot(y, step)
-		bs := make([]float64, n)
-		for i := 0; i < n; i++ {
-			for j := 0; j < n; j++ {
-				bs[i] += b.At(i, j) * step[j]
-			}
-		}
-		sbs := dot(step, bs)
-		if ys > 1e-12 && sbs > 1e-12 {
-			for i := 0; i < n; i++ {
-				for j := i; j < n; j++ {
-					b.SetSym(i, j, b.At(i, j)+y[i]*y[j]/ys-bs[i]*bs[j]/sbs)
-				}
-			}
-		}
-		x, g = xn, gn
-	}
-	t.Fatal("relax: not converged in 60 steps")
-	return nil
-}
-
-// relaxedModes relaxes m at the level given (starting from the Hessian of
-// the start geometry at startMethod/startBasis, the same level when
-// empty), then computes the Hessian with dipole derivatives and analyzes
-// it with the most abundant isotopes.
-func relaxedModes(t testing.TB, m *molecule.Molecule, method, basisName, startMethod, startBasis string) (*Hessian, *Analysis, []float64) {
+// relaxedModes relaxes m at the level given with package optimize at its
+// strict criteria (what a frequency analysis wants), then computes the
+// Hessian with dipole derivatives and analyzes it with the most abundant
+// isotopes.
+func relaxedModes(t testing.TB, m *molecule.Molecule, method, basisName string) (*Hessian, *Analysis, []float64) {
 	t.Helper()
 	s := scfSurface(t, m, method, basisName, 2)
-	x0 := gradient.Coordinates(m)
-	start := s
-	if startMethod != "" {
-		start = scfSurface(t, m, startMethod, startBasis, 2)
-	}
-	h0, err := ComputeHessian(context.Background(), start, x0, HessianOptions{Threads: 2})
+	crit, err := optimize.Convergence("strict")
 	if err != nil {
 		t.Fatal(err)
 	}
-	x := relax(t, s, x0, h0.HessianAU)
+	r, err := optimize.Relax(context.Background(), s, zOf(m), gradient.Coordinates(m), optimize.Options{Criteria: crit, Threads: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := r.XBohr
 	h, err := ComputeHessian(context.Background(), s, x, HessianOptions{Threads: 2, Dipole: true})
 	if err != nil {
 		t.Fatal(err)
@@ -187,6 +78,9 @@ func relaxedModes(t testing.TB, m *molecule.Molecule, method, basisName, startMe
 	a, err := Analyze(System{Z: zOf(m), MassesU: massesOf(m), CoordsBohr: x, HessianAU: h.HessianAU, DipoleDerivAU: h.DipoleDerivAU})
 	if err != nil {
 		t.Fatal(err)
+	}
+	if g, _ := InternalGradientNorm(x, h.GradientAU); g > 1e-4 {
+		t.Fatalf("relaxed geometry has gradient norm %.1e", g)
 	}
 	return h, a, x
 }
@@ -222,7 +116,7 @@ var waterStart = []atomSpec{{"O", 0, 0, 0.1173}, {"H", 0, 0.7572, -0.4692}, {"H"
 // rule for D2O; the Hessian independent of the thread count.
 func TestWaterSTO3G(t *testing.T) {
 	m := buildMolecule(t, waterStart)
-	h, a, x := relaxedModes(t, m, "hf", "sto-3g", "", "")
+	h, a, x := relaxedModes(t, m, "hf", "sto-3g")
 	if len(a.Modes) != 3 || a.Linear {
 		t.Fatalf("%d modes (linear %v), want 3", len(a.Modes), a.Linear)
 	}
@@ -282,12 +176,17 @@ func TestDegenerateModesAndSelectionRules(t *testing.T) {
 		{"N2", []atomSpec{{"N", 0, 0, 0.55}, {"N", 0, 0, -0.55}}, 1, nil},
 	} {
 		m := buildMolecule(t, c.atoms)
-		_, an, _ := relaxedModes(t, m, "hf", "sto-3g", "", "")
+		_, an, _ := relaxedModes(t, m, "hf", "sto-3g")
 		w := wavenumbers(an)
 		t.Logf("%s HF/STO-3G: %.2f cm⁻¹ (linear %v), rigid-body roots %.3f", c.name, w, an.Linear, an.RigidBodyCm1)
 		if len(w) != c.modes {
 			t.Errorf("%s: %d modes, want %d", c.name, len(w), c.modes)
 			continue
+		}
+		for _, r := range an.RigidBodyCm1 {
+			if math.Abs(r) > 10 {
+				t.Errorf("%s: rigid-body root %.2f cm⁻¹, want within 10 of zero", c.name, r)
+			}
 		}
 		for _, g := range c.groups {
 			lo, hi := math.Inf(1), math.Inf(-1)
@@ -298,9 +197,8 @@ func TestDegenerateModesAndSelectionRules(t *testing.T) {
 				t.Errorf("%s: degenerate modes %v spread over %.3f cm⁻¹ (%.3f), want ≤ 0.5", c.name, g, hi-lo, w)
 			}
 		}
-		for i, md := range an.Modes {
+		for _, md := range an.Modes {
 			t.Logf("  %8.2f cm⁻¹  %9.4f km/mol  μ %.4f u  k %.4f mdyn/Å  %s", md.WavenumberCm1, md.IRIntensityKmMol, md.ReducedMassU, md.ForceConstantMdynA, md.Description)
-			_ = i
 		}
 		switch c.name {
 		case "CO2":
@@ -346,7 +244,7 @@ func TestWaterPublished(t *testing.T) {
 		{"b3lyp", "6-31G*", []float64{1713, 3727, 3849}},
 	} {
 		m := buildMolecule(t, waterStart)
-		h, a, _ := relaxedModes(t, m, c.method, c.basis, "hf", "3-21g")
+		h, a, _ := relaxedModes(t, m, c.method, c.basis)
 		w := wavenumbers(a)
 		sc, err := ChooseScaling("auto", c.method, c.basis)
 		if err != nil || !sc.Found {
@@ -366,8 +264,12 @@ func TestWaterPublished(t *testing.T) {
 				t.Errorf("%s/%s mode %d: scaled %.1f cm⁻¹, want within 5%% of %.0f", c.method, c.basis, i+1, scaled, experiment[i])
 			}
 		}
+		// Hartree–Fock energies are exactly invariant under rotations; a
+		// DFT grid that keeps one frame for all displacements is not
+		// (its angular points do not turn with the molecule), which leaves
+		// rotational roots of ~10 cm⁻¹ whatever the step (logged above).
 		for _, r := range a.RigidBodyCm1 {
-			if math.Abs(r) > 10 {
+			if c.method == "hf" && math.Abs(r) > 10 {
 				t.Errorf("%s/%s: rigid-body root %.2f cm⁻¹, want within 10 of zero", c.method, c.basis, r)
 			}
 		}

@@ -26,8 +26,8 @@ var presets = []struct {
 	name string
 	c    Criteria
 }{
-	{"draft", Criteria{MaxGradient: 2.5e-3, RMSGradient: 1.7e-3, MaxStep: 1.0e-2, RMSStep: 7e-3, EnergyChange: 1e-5}},
-	{"report", Criteria{MaxGradient: 3e-4, RMSGradient: 2e-4, MaxStep: 1.2e-3, RMSStep: 8e-4, EnergyChange: 1e-6}},
+	{"draft", Criteria{MaxGradient: 2.5e-3, RMSGradient: 1.7e-3, MaxStep: 1.9e-2, RMSStep: 1.3e-2, EnergyChange: 1e-5}},
+	{"report", Criteria{MaxGradient: 3e-4, RMSGradient: 2e-4, MaxStep: 1.9e-3, RMSStep: 1.3e-3, EnergyChange: 1e-6}},
 	{"strict", Criteria{MaxGradient: 1e-5, RMSGradient: 7e-6, MaxStep: 4e-5, RMSStep: 3e-5, EnergyChange: 1e-8}},
 }
 

@@ -39,9 +39,16 @@ func period(z int) int {
 	return 2
 }
 
+var lindhAtCovalent = true
+
 func lindhRho(z []int, x []float64, i, j int) float64 {
 	pi, pj := period(z[i]), period(z[j])
 	r := dist(x, i, j)
+	if lindhAtCovalent {
+		if rc := CovalentRadiusBohr(z[i]) + CovalentRadiusBohr(z[j]); r < BondFactor*rc {
+			r = rc
+		}
+	}
 	rr := lindhRref[pi][pj]
 	return math.Exp(lindhAlpha[pi][pj] * (rr*rr - r*r))
 }

@@ -38,6 +38,11 @@ const BondFactor = 1.3
 // chain.
 const linearDegrees = 175.0
 
+// bendDegrees is the angle above which Primitives describes three atoms
+// with linear bends from the start: below linearDegrees, so that a
+// near-linear start does not need a rebuild on its way to linearity.
+var bendDegrees = 160.0
+
 // planarDegrees: an atom with three neighbours whose three angles add up to
 // more than this is near-planar and gets an out-of-plane dihedral.
 const planarDegrees = 350.0
@@ -157,7 +162,7 @@ func Primitives(z []int, xBohr []float64, extra []Coordinate) []Coordinate {
 	for i := range nb {
 		sort.Ints(nb[i])
 	}
-	linear := func(i, j, k int) bool { return angleDegrees(xBohr, i, j, k) > linearDegrees }
+	linear := func(i, j, k int) bool { return angleDegrees(xBohr, i, j, k) > bendDegrees }
 	// Angles and linear bends.
 	for j := 0; j < n; j++ {
 		for p := 0; p < len(nb[j]); p++ {

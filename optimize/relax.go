@@ -17,7 +17,7 @@ const DefaultMaxSteps = 100
 // Trust radius (bohr and radians in internal coordinates, bohr in
 // Cartesian ones): start, bounds (common practice).
 const (
-	DefaultTrustRadius = 0.3
+	DefaultTrustRadius = 0.5
 	maxTrustRadius     = 1.0
 	minTrustRadius     = 1e-3
 )
@@ -65,11 +65,12 @@ type Options struct {
 }
 
 type tuning struct {
+	hess func(p Coordinate) float64
 	trust0, rejectShrink, lowShrink, lowRatio, highRatio, grow, rejectRise float64
 	shrinkOfR                                                              bool
 }
 
-var defaultTuning = tuning{trust0: 0.3, rejectShrink: 0.25, lowShrink: 0.5, lowRatio: 0.25, highRatio: 0.75, grow: 2, rejectRise: 1e-6}
+var defaultTuning = tuning{trust0: 0.5, rejectShrink: 0.25, lowShrink: 0.5, lowRatio: 0.25, highRatio: 0.75, grow: 2, rejectRise: 1e-6}
 
 // Step describes one evaluated geometry of a relaxation.
 type Step struct {
@@ -524,6 +525,11 @@ func (r *relaxer) build(x []float64) bool {
 		}
 	}
 	r.h = modelHessian(r.z, x, r.prims)
+	if r.opt.tune != nil && r.opt.tune.hess != nil {
+		for i, p := range r.prims {
+			r.h[i*len(r.prims)+i] = r.opt.tune.hess(p)
+		}
+	}
 	f, err := r.frame(x)
 	if err != nil {
 		return false

@@ -18,6 +18,9 @@ func TestTune(t *testing.T) {
 	v = d; v.rejectRise = 1e-4; variants["e rise1e-4"] = v
 	v = d; v.trust0 = 0.5; v.rejectShrink = 0.5; v.lowShrink=0.5; v.shrinkOfR = true; variants["f b+c"] = v
 	v = d; v.lowRatio = 0.1; v.rejectShrink = 0.5; variants["g low0.1"] = v
+	v = d; v.trust0 = 0.5; v.grow = 3; variants["h grow3"] = v
+	v = d; v.trust0 = 1.0; variants["i trust1"] = v
+	v = d; v.trust0 = 0.5; v.highRatio = 0.5; variants["j high0.5"] = v
 	type cs struct{ name string; z []int; x0 []float64; surf func() gradient.Surface }
 	var cases []cs
 	for _, mc := range modelCases() {
@@ -34,9 +37,12 @@ func TestTune(t *testing.T) {
 		x0 := distort(m.z, m.x, 0.2, 15)
 		cases = append(cases, cs{m.name, m.z, x0, func() gradient.Surface { return scfSurface(t, m.z, x0, "hf", "sto-3g") }})
 	}
-	for _, lvl := range []string{"report", "strict"} {
+	for _, bd := range []float64{175, 165, 160} {
+	bendDegrees = bd
+	fmt.Println("bend", bd)
+	for _, lvl := range []string{"report"} {
 		crit, _ := Convergence(lvl)
-		for _, name := range []string{"a default", "b trust0.5", "c shrinkR", "d rej0.5", "e rise1e-4", "f b+c", "g low0.1"} {
+		for _, name := range []string{"b trust0.5"} {
 			tu := variants[name]
 			tot := 0
 			line := ""
@@ -45,8 +51,10 @@ func TestTune(t *testing.T) {
 				if err != nil { t.Fatal(err) }
 				tot += res.Evaluations
 				line += fmt.Sprintf(" %3d", res.Evaluations)
+				if name == "b trust0.5" && bd == 175 { fmt.Printf("%s ", c.name) }
 			}
 			fmt.Printf("%-7s %-12s total %4d :%s\n", lvl, name, tot, line)
 		}
+	}
 	}
 }

@@ -308,7 +308,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 // geometry file: the same flags except --out (the new run writes beside
 // that file).
 func continueCommand(cmd *cobra.Command, geomPath string, f *relaxFlags, freeze []int, hold []optimize.Coordinate) string {
-	parts := []string{"poise", "relax", quoteArg(geomPath)}
+	parts := []string{"poise", "relax", shellWord(geomPath)}
 	cmd.Flags().Visit(func(fl *pflag.Flag) {
 		switch fl.Name {
 		case "out", "freeze", "hold":

@@ -109,14 +109,10 @@ type gradWorkspace struct {
 	d1     [3][]float64 // np×m first derivatives x, y, z
 	d2     [6][]float64 // np×m second derivatives xx, xy, xz, yy, yz, zz
 	cart   []float64
-	dsub   []float64
-	u, t   []float64 // np×m
-	zp     []float64 // np×m
+	t      []float64 // np×m: T = Z'D
+	zp     []float64 // np×m: Z'
 	colSum []float64 // 3m
 }
-
-// hessIndex maps (j, k) to the packed index of ∂_j∂_k in gradWorkspace.d2.
-var hessIndex = [3][3]int{{0, 1, 2}, {1, 3, 4}, {2, 4, 5}}
 
 // gradBatch adds one batch's contribution to out (3·natoms).
 func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, out []float64) {
@@ -416,7 +412,7 @@ func evalFunctionDerivatives(b *integral.Basis, ws *gradWorkspace, start, np int
 							if j == k {
 								v += poly * d1r
 							}
-							c2[hessIndex[j][k]][c] = v
+							c2[j*(5-j)/2+k][c] = v // packed xx xy xz yy yz zz
 						}
 					}
 				}

@@ -15,7 +15,7 @@ import (
 // 1e−14, it sums the expansion of e^{−tu²} under the integral,
 // F_m(t) = Σ_k (−t)^k / (k!·(2m+2k+1)), whose terms fall monotonically
 // there (textbook; e.g. Helgaker, Jørgensen & Olsen, "Molecular
-// Electronic-Structure Theory", eq. 9.8.12, from memory).
+// Electronic-Structure Theory", section 9.8, from memory).
 func boysReference(m int, t float64) float64 {
 	if t < 1 {
 		var sum float64

@@ -8,15 +8,14 @@ package integral
 //
 //	∂/∂A_x  x_A^a e^{−α x_A²} = 2α x_A^{a+1} e^{−α x_A²} − a x_A^{a−1} e^{−α x_A²}
 //
-// (Obara & Saika, J. Chem. Phys. 84, 3963 (1986), eq. (A3)'s derivative
-// relation; T. Helgaker and P. R. Taylor, "Gaussian basis sets and
-// molecular integrals", in Modern Electronic Structure Theory (World
-// Scientific, 1995), section on geometrical derivatives). The derivative of
+// (S. Obara and A. Saika, J. Chem. Phys. 84, 3963 (1986); T. Helgaker and
+// P. R. Taylor, Theor. Chim. Acta 83, 177 (1992)). The derivative of
 // a contracted shell of momentum l is therefore the combination of a
 // "raised" shell (momentum l+1, primitive coefficients 2α_p·c_p) and a
 // "lowered" shell (momentum l−1, coefficients c_p). Integrals over those
-// shifted shells are computed by the ordinary recurrences as raw Cartesian
-// blocks, combined component by component, and contracted with the density
+// shifted shells are computed by the ordinary Obara–Saika recurrences of
+// oneelectron.go (overlap, kinetic energy, nuclear attraction with the
+// Head-Gordon–Pople transfer) as raw Cartesian blocks, combined component by component, and contracted with the density
 // back-transformed to the Cartesian components of the original shells
 // (the transpose of the shell's final transformation), so the derivative
 // blocks are never transformed to spherical functions.

@@ -4,8 +4,9 @@ package integral
 // densities: the two-electron part of analytic SCF gradients.
 //
 // Method. For a shell quartet (AB|CD) the derivative with respect to A is
-// (Obara & Saika 1986; T. Helgaker and P. R. Taylor, Theor. Chim. Acta 83,
-// 177 (1992), for the derivative relation of Gaussians)
+// (the derivative relation of Cartesian Gaussians: S. Obara and A. Saika,
+// J. Chem. Phys. 84, 3963 (1986); T. Helgaker and P. R. Taylor, Theor.
+// Chim. Acta 83, 177 (1992))
 //
 //	∂/∂A_i (ab|cd) = 2α·(a+1ᵢ b|cd) − aᵢ·(a−1ᵢ b|cd),
 //
@@ -13,26 +14,30 @@ package integral
 // translational invariance gives the fourth centre,
 // ∂/∂D = −(∂/∂A + ∂/∂B + ∂/∂C), so three centres are differentiated
 // explicitly. All required classes come from a single vertical recursion
-// per primitive quartet (Obara & Saika 1986, eq. (39), as organized by
-// M. Head-Gordon and J. A. Pople, J. Chem. Phys. 89, 5777 (1988)) carried
-// one angular-momentum unit higher on each side: its [e0|f0] values are
-// contracted four times, unweighted and weighted with 2α, 2β and 2γ, and
-// the horizontal recursion of Head-Gordon and Pople then yields the raised
-// classes (a+1 b|cd), (a b+1|cd), (ab|c+1 d) and the lowered classes
-// (a−1 b|cd), (a b−1|cd), (ab|c−1 d). The recursions are those of the
-// energy engine (eri_generic.go).
+// (Obara & Saika 1986, eq. (39), in the arrangement of M. Head-Gordon and
+// J. A. Pople, J. Chem. Phys. 89, 5777 (1988)) carried one unit of angular
+// momentum higher on each side and one Boys order higher (la+lb+lc+ld+1).
+// It runs over a batch of primitive quartets at once, the batch being the
+// innermost, contiguous index, which keeps the loops long for the heavily
+// contracted low classes. Its [e0|f0] values are contracted four times,
+// unweighted and weighted with 2α, 2β and 2γ, and the horizontal recursion
+// of Head-Gordon and Pople (the energy engine's, eri_generic.go) then
+// yields the raised classes (a+1 b|cd), (a b+1|cd), (ab|c+1 d) and the
+// lowered classes (a−1 b|cd), (a b−1|cd), (ab|c−1 d).
 //
 // The derivative integrals are contracted in the Cartesian components of
 // the original shells with the two-particle density
 //
 //	Γ_abcd = D_ab D_cd − c_x Σ_s (D^s_ac D^s_bd + D^s_ad D^s_bc)
 //
-// (D the total density, D^s the spin densities, c_x = exchangeFactor/2),
-// which has the 8-fold permutational symmetry of the integrals, so only
-// unique shell quartets (i ≥ j, k ≥ l, ij ≥ kl) are visited, each with its
-// degeneracy. Γ is carried back from the final functions to Cartesian
-// components once per quartet (transpose of the shell transformations),
-// so derivative blocks are never transformed.
+// (D the total density, D^s the spin densities, c_x = exchangeFactor/2; a
+// restricted density stands for two spins with D^s = D/2, i.e. c_x =
+// exchangeFactor/4 with D^s → D), which has the 8-fold permutational
+// symmetry of the integrals, so only unique shell quartets (i ≥ j, k ≥ l,
+// ij ≥ kl) are visited, each with its degeneracy. Γ is carried back from
+// the final functions to Cartesian components once per quartet (transpose
+// of the shell transformations), so derivative blocks are never
+// transformed.
 
 import (
 	"math"
@@ -203,7 +208,7 @@ func derivVRRSize(lab1, lcd1 int) int {
 // derivWork is the scratch memory of one goroutine.
 type derivWork struct {
 	w               *ERIWorkspace // recursion buffers, sized for momenta up to maxL+1
-	tp, acc0, accA  []float64
+	acc0, accA      []float64
 	accB, accC, sub []float64
 	up, down        [3][]float64 // Cartesian raised / lowered classes for centres A, B, C
 	gam, gtmp       []float64    // two-particle density, final then Cartesian
@@ -234,7 +239,6 @@ func (d *eriDeriv) newWork() *derivWork {
 	w.out = make([]float64, 1)
 	dw := &derivWork{w: w}
 	nacc := eriCum(2*L+2) * eriCum(2*L+2)
-	dw.tp = make([]float64, nacc)
 	dw.acc0 = make([]float64, nacc)
 	dw.accA = make([]float64, nacc)
 	dw.accB = make([]float64, nacc)

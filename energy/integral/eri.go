@@ -62,6 +62,12 @@ type eriPair struct {
 	ab     [3]float64 // A − B
 	prims  []eriPrim  // sorted by decreasing bnd
 	maxBnd float64    // prims[0].bnd, 0 without primitives
+
+	// Final transformation of the pair's two shells (a first).
+	na, nb  int       // Cartesian components
+	sa, sb  []float64 // diagonal factors (ones for identity)
+	plain   bool      // both transformations are the identity
+	general bool      // one of them is a general (spherical) matrix
 }
 
 // eriQuartetThreshold skips a primitive quartet when the product of the
@@ -113,7 +119,13 @@ func NewERI(b *Basis) *ERIEngine {
 	e.pairs = make([]eriPair, e.nshell*(e.nshell+1)/2)
 	for i := 0; i < e.nshell; i++ {
 		for j := 0; j <= i; j++ {
-			e.pairs[i*(i+1)/2+j] = newERIPair(b, i, j)
+			p := newERIPair(b, i, j)
+			ia, ib := &e.info[p.a], &e.info[p.b]
+			p.na, p.nb = ia.ncart, ib.ncart
+			p.sa, p.sb = eriScale(ia, p.na), eriScale(ib, p.nb)
+			p.plain = ia.scale == nil && !ia.general && ib.scale == nil && !ib.general
+			p.general = ia.general || ib.general
+			e.pairs[i*(i+1)/2+j] = p
 		}
 	}
 	e.schwarz = make([]float64, e.nshell*e.nshell)
@@ -314,21 +326,82 @@ func basisNCart(l int) int { return (l + 1) * (l + 2) / 2 }
 // belongs to w and is valid until the next call with w.
 func (e *ERIEngine) Quartet(w *ERIWorkspace, i, j, k, l int) []float64 {
 	bra, ket := e.pair(i, j), e.pair(k, l)
-	// pos[x] is the position (0…3 in the request) of canonical shell x
-	// (A, B, C, D).
-	pos := [4]int{0, 1, 2, 3}
-	if bra.a != i {
-		pos[0], pos[1] = 1, 0
-	}
-	if ket.a != k {
-		pos[2], pos[3] = 3, 2
-	}
-	if ket.key() > bra.key() {
+	swBra, swKet := bra.a != i, ket.a != k // pair stored in the other order
+	swap := ket.key() > bra.key()          // ket computed as the bra
+	if swap {
 		bra, ket = ket, bra
-		pos = [4]int{pos[2], pos[3], pos[0], pos[1]}
 	}
 	cart := e.cartesian(w, bra, ket)
-	return e.finish(w, cart, [4]int{bra.a, bra.b, ket.a, ket.b}, pos)
+	if bra.plain && ket.plain && !swBra && !swKet && !swap {
+		return cart[:bra.na*bra.nb*ket.na*ket.nb]
+	}
+	if bra.general || ket.general {
+		// pos[x] is the position (0…3 in the request) of canonical shell x.
+		pos := [4]int{0, 1, 2, 3}
+		if swBra {
+			pos[0], pos[1] = 1, 0
+		}
+		if swKet {
+			pos[2], pos[3] = 3, 2
+		}
+		if swap {
+			pos = [4]int{pos[2], pos[3], pos[0], pos[1]}
+		}
+		return e.finish(w, cart, [4]int{bra.a, bra.b, ket.a, ket.b}, pos)
+	}
+	return eriScatterPairs(w, cart, bra, ket, swBra, swKet, swap)
+}
+
+// eriScatterPairs applies the diagonal factors of Cartesian shells and the
+// permutation back to the requested order.
+func eriScatterPairs(w *ERIWorkspace, cart []float64, bra, ket *eriPair, swBra, swKet, swap bool) []float64 {
+	// The request is (first pair | second pair); first is bra unless swap.
+	// swBra and swKet refer to the request's pairs (i,j) and (k,l).
+	first, second := bra, ket
+	swFirst, swSecond := swBra, swKet
+	if swap {
+		first, second = ket, bra
+	}
+	n2 := second.na * second.nb
+	total := first.na * first.nb * n2
+	// Output strides of the canonical a and b of each pair.
+	var f1, f2, s1, s2 int
+	if swSecond {
+		s1, s2 = 1, second.na
+	} else {
+		s1, s2 = second.nb, 1
+	}
+	if swFirst {
+		f1, f2 = n2, first.na*n2
+	} else {
+		f1, f2 = first.nb*n2, n2
+	}
+	var out [4]int // strides of A, B, C, D
+	if swap {
+		out = [4]int{s1, s2, f1, f2}
+	} else {
+		out = [4]int{f1, f2, s1, s2}
+	}
+	n := [4]int{bra.na, bra.nb, ket.na, ket.nb}
+	sc := [4][]float64{bra.sa, bra.sb, ket.sa, ket.sb}
+	src := [4]int{bra.nb * ket.na * ket.nb, ket.na * ket.nb, ket.nb, 1}
+	dst := w.out[:total]
+	if &cart[0] == &dst[0] {
+		dst = w.h1[:total]
+		if &cart[0] == &w.h1[0] {
+			dst = w.h2[:total]
+		}
+	}
+	var ax [4]eriAxis
+	m := 0
+	for x := 0; x < 4; x++ {
+		if n[x] > 1 {
+			ax[m] = eriAxis{n: n[x], src: src[x], out: out[x], scale: sc[x]}
+			m++
+		}
+	}
+	eriScatterAxes(dst, cart, &ax, m)
+	return dst
 }
 
 // cartesian returns (AB|CD) over axially normalized Cartesian components
@@ -421,6 +494,12 @@ func (e *ERIEngine) finish(w *ERIWorkspace, cart []float64, sh, pos [4]int) []fl
 		ax[k] = eriAxis{n: n[x], src: ss[x], out: rs[pos[x]], scale: eriScale(in[x], n[x])}
 		k++
 	}
+	eriScatterAxes(out, src, &ax, k)
+	return out
+}
+
+// eriScatterAxes scatters over the first k axes (those of length > 1).
+func eriScatterAxes(out, src []float64, ax *[4]eriAxis, k int) {
 	switch k {
 	case 0:
 		out[0] = src[0]
@@ -428,11 +507,11 @@ func (e *ERIEngine) finish(w *ERIWorkspace, cart []float64, sh, pos [4]int) []fl
 		eriScatter1(out, src, &ax[0])
 	case 2:
 		eriScatter2(out, src, &ax[0], &ax[1])
+	case 3:
+		eriScatter3(out, src, &ax[0], &ax[1], &ax[2])
 	default:
-		eriScatter(out, src[:total], eriScale(in[0], n[0]), eriScale(in[1], n[1]), eriScale(in[2], n[2]), eriScale(in[3], n[3]),
-			rs[pos[0]], rs[pos[1]], rs[pos[2]], rs[pos[3]])
+		eriScatter4(out, src, ax)
 	}
-	return out
 }
 
 // eriAxis is one index of a quartet of integrals during the final scatter.
@@ -451,36 +530,42 @@ func eriScatter2(out, src []float64, a, b *eriAxis) {
 	sb := b.scale[:b.n]
 	for i, fa := range a.scale[:a.n] {
 		so, oo := i*a.src, i*a.out
-		for j, fb := range sb {
-			out[oo+j*b.out] = src[so+j*b.src] * fa * fb
+		for _, fb := range sb {
+			out[oo] = src[so] * fa * fb
+			so += b.src
+			oo += b.out
 		}
 	}
 }
 
-// eriScatter writes out[a·sA+b·sB+c·sC+d·sD] = src[a][b][c][d]·sa[a]·sb[b]·sc[c]·sd[d].
-func eriScatter(out, src, sa, sb, sc, sd []float64, sA, sB, sC, sD int) {
-	nd := len(sd)
-	idx := 0
-	for a, fa := range sa {
-		oa := a * sA
-		for b, fb := range sb {
+func eriScatter3(out, src []float64, a, b, c *eriAxis) {
+	sb, sc := b.scale[:b.n], c.scale[:c.n]
+	for i, fa := range a.scale[:a.n] {
+		for j, fb := range sb {
 			fab := fa * fb
-			oab := oa + b*sB
-			for c, fc := range sc {
+			so, oo := i*a.src+j*b.src, i*a.out+j*b.out
+			for _, fc := range sc {
+				out[oo] = src[so] * fab * fc
+				so += c.src
+				oo += c.out
+			}
+		}
+	}
+}
+
+func eriScatter4(out, src []float64, ax *[4]eriAxis) {
+	a, b, c, d := &ax[0], &ax[1], &ax[2], &ax[3]
+	sb, sc, sd := b.scale[:b.n], c.scale[:c.n], d.scale[:d.n]
+	for i, fa := range a.scale[:a.n] {
+		for j, fb := range sb {
+			fab := fa * fb
+			for k, fc := range sc {
 				fabc := fab * fc
-				o := oab + c*sC
-				row := src[idx : idx+nd]
-				idx += nd
-				if sD == 1 {
-					dst := out[o : o+nd]
-					for d, x := range row {
-						dst[d] = x * fabc * sd[d]
-					}
-					continue
-				}
-				for d, x := range row {
-					out[o] = x * fabc * sd[d]
-					o += sD
+				so, oo := i*a.src+j*b.src+k*c.src, i*a.out+j*b.out+k*c.out
+				for _, fd := range sd {
+					out[oo] = src[so] * fabc * fd
+					so += d.src
+					oo += d.out
 				}
 			}
 		}

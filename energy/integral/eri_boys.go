@@ -24,13 +24,15 @@ const (
 	eriBoysTMax    = 60.0 // the table covers 0 ≤ t < eriBoysTMax
 )
 
-// eriBoysTab[k*eriBoysRow + m*eriBoysTerms + j] = F_{m+j}(k·h)·(−1)^j/j!.
+// eriBoysRows is the number of grid points t₀ = 0, h, …, eriBoysTMax.
+const eriBoysRows = int(eriBoysTMax*eriBoysInvStep) + 1
+
+// eriBoysTab[k][m*eriBoysTerms + j] = F_{m+j}(k·h)·(−1)^j/j!.
 // Read-only after initialization.
-var eriBoysTab = func() []float64 {
-	rows := int(eriBoysTMax*eriBoysInvStep) + 1
-	tab := make([]float64, rows*eriBoysRow)
+var eriBoysTab = func() *[eriBoysRows][eriBoysRow]float64 {
+	tab := new([eriBoysRows][eriBoysRow]float64)
 	var f [eriBoysMaxM + eriBoysTerms]float64
-	for k := 0; k < rows; k++ {
+	for k := range tab {
 		Boys(eriBoysMaxM+eriBoysTerms-1, float64(k)*eriBoysStep, f[:])
 		for m := 0; m <= eriBoysMaxM; m++ {
 			fact := 1.0
@@ -38,7 +40,7 @@ var eriBoysTab = func() []float64 {
 				if j > 0 {
 					fact *= -float64(j)
 				}
-				tab[k*eriBoysRow+m*eriBoysTerms+j] = f[m+j] / fact
+				tab[k][m*eriBoysTerms+j] = f[m+j] / fact
 			}
 		}
 	}
@@ -53,7 +55,7 @@ func eriBoysInline(L int, t float64, f []float64) {
 		k := int(t*eriBoysInvStep + 0.5)
 		d := t - float64(k)*eriBoysStep
 		for m := 0; m <= L; m++ {
-			c := eriBoysTab[k*eriBoysRow+m*eriBoysTerms : k*eriBoysRow+(m+1)*eriBoysTerms]
+			c := eriBoysTab[k][m*eriBoysTerms : (m+1)*eriBoysTerms]
 			v := c[eriBoysTerms-1]
 			for j := eriBoysTerms - 2; j >= 0; j-- {
 				v = c[j] + d*v

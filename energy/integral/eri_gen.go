@@ -32,7 +32,7 @@ var eriGenTable = [eriNumClass]eriGenFunc{
 
 // eriGen0000 computes Cartesian (ss|ss) integrals.
 func eriGen0000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [1]float64
+	var a0 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -53,22 +53,22 @@ func eriGen0000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 			} else {
 				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
 			}
-			acc[0] += f0
+			a0 += f0
 		}
 	}
 	out := (*[1]float64)(w.out)
-	*out = acc
+	out[0] = a0
 	return out[:]
 }
 
 // eriGen1000 computes Cartesian (ps|ss) integrals.
 func eriGen1000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [3]float64
+	var a0, a1, a2 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -92,7 +92,7 @@ func eriGen1000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[16]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 			} else {
@@ -107,19 +107,21 @@ func eriGen1000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v2 := pax*f0 + wpx*f1
 			v3 := pay*f0 + wpy*f1
 			v4 := paz*f0 + wpz*f1
-			acc[0] += v2
-			acc[1] += v3
-			acc[2] += v4
+			a0 += v2
+			a1 += v3
+			a2 += v4
 		}
 	}
 	out := (*[3]float64)(w.out)
-	*out = acc
+	out[0] = a0
+	out[1] = a1
+	out[2] = a2
 	return out[:]
 }
 
 // eriGen1010 computes Cartesian (ps|ps) integrals.
 func eriGen1010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [9]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -143,7 +145,7 @@ func eriGen1010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[24]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
@@ -180,25 +182,33 @@ func eriGen1010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v15 := qcx*v13 + wqx*v14
 			v16 := qcy*v13 + wqy*v14
 			v17 := qcz*v13 + wqz*v14 + oo2zn*f1
-			acc[0] += v5
-			acc[1] += v6
-			acc[2] += v7
-			acc[3] += v10
-			acc[4] += v11
-			acc[5] += v12
-			acc[6] += v15
-			acc[7] += v16
-			acc[8] += v17
+			a0 += v5
+			a1 += v6
+			a2 += v7
+			a3 += v10
+			a4 += v11
+			a5 += v12
+			a6 += v15
+			a7 += v16
+			a8 += v17
 		}
 	}
 	out := (*[9]float64)(w.out)
-	*out = acc
+	out[0] = a0
+	out[1] = a1
+	out[2] = a2
+	out[3] = a3
+	out[4] = a4
+	out[5] = a5
+	out[6] = a6
+	out[7] = a7
+	out[8] = a8
 	return out[:]
 }
 
 // eriGen1100 computes Cartesian (pp|ss) integrals.
 func eriGen1100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [9]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -222,7 +232,7 @@ func eriGen1100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[24]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
@@ -250,30 +260,30 @@ func eriGen1100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v12 := pay*v3 + wpy*v8 + (oo2z*f0 - roz*f1)
 			v13 := pay*v4 + wpy*v10
 			v14 := paz*v4 + wpz*v10 + (oo2z*f0 - roz*f1)
-			acc[0] += v2
-			acc[1] += v3
-			acc[2] += v4
-			acc[3] += v7
-			acc[4] += v9
-			acc[5] += v11
-			acc[6] += v12
-			acc[7] += v13
-			acc[8] += v14
+			a0 += v2
+			a1 += v3
+			a2 += v4
+			a3 += v7
+			a4 += v9
+			a5 += v11
+			a6 += v12
+			a7 += v13
+			a8 += v14
 		}
 	}
 	abx := bra.ab[0]
 	aby := bra.ab[1]
 	abz := bra.ab[2]
 	out := (*[9]float64)(w.out)
-	h0 := acc[3] + abx*acc[0]
-	h1 := acc[4] + aby*acc[0]
-	h2 := acc[5] + abz*acc[0]
-	h3 := acc[4] + abx*acc[1]
-	h4 := acc[6] + aby*acc[1]
-	h5 := acc[7] + abz*acc[1]
-	h6 := acc[5] + abx*acc[2]
-	h7 := acc[7] + aby*acc[2]
-	h8 := acc[8] + abz*acc[2]
+	h0 := a3 + abx*a0
+	h1 := a4 + aby*a0
+	h2 := a5 + abz*a0
+	h3 := a4 + abx*a1
+	h4 := a6 + aby*a1
+	h5 := a7 + abz*a1
+	h6 := a5 + abx*a2
+	h7 := a7 + aby*a2
+	h8 := a8 + abz*a2
 	out[0] = h0
 	out[1] = h1
 	out[2] = h2
@@ -288,7 +298,7 @@ func eriGen1100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 
 // eriGen1110 computes Cartesian (pp|ps) integrals.
 func eriGen1110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [27]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11, a12, a13, a14, a15, a16, a17, a18, a19, a20, a21, a22, a23, a24, a25, a26 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -312,7 +322,7 @@ func eriGen1110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[32]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
@@ -386,66 +396,66 @@ func eriGen1110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v49 := qcx*v47 + wqx*v48
 			v50 := qcy*v47 + wqy*v48
 			v51 := qcz*v47 + wqz*v48 + 2*oo2zn*v14
-			acc[0] += v5
-			acc[1] += v6
-			acc[2] += v7
-			acc[3] += v10
-			acc[4] += v11
-			acc[5] += v12
-			acc[6] += v15
-			acc[7] += v16
-			acc[8] += v17
-			acc[9] += v22
-			acc[10] += v23
-			acc[11] += v24
-			acc[12] += v28
-			acc[13] += v29
-			acc[14] += v30
-			acc[15] += v34
-			acc[16] += v35
-			acc[17] += v36
-			acc[18] += v39
-			acc[19] += v40
-			acc[20] += v41
-			acc[21] += v44
-			acc[22] += v45
-			acc[23] += v46
-			acc[24] += v49
-			acc[25] += v50
-			acc[26] += v51
+			a0 += v5
+			a1 += v6
+			a2 += v7
+			a3 += v10
+			a4 += v11
+			a5 += v12
+			a6 += v15
+			a7 += v16
+			a8 += v17
+			a9 += v22
+			a10 += v23
+			a11 += v24
+			a12 += v28
+			a13 += v29
+			a14 += v30
+			a15 += v34
+			a16 += v35
+			a17 += v36
+			a18 += v39
+			a19 += v40
+			a20 += v41
+			a21 += v44
+			a22 += v45
+			a23 += v46
+			a24 += v49
+			a25 += v50
+			a26 += v51
 		}
 	}
 	abx := bra.ab[0]
 	aby := bra.ab[1]
 	abz := bra.ab[2]
 	out := (*[27]float64)(w.out)
-	h0 := acc[9] + abx*acc[0]
-	h1 := acc[12] + aby*acc[0]
-	h2 := acc[15] + abz*acc[0]
-	h3 := acc[12] + abx*acc[3]
-	h4 := acc[18] + aby*acc[3]
-	h5 := acc[21] + abz*acc[3]
-	h6 := acc[15] + abx*acc[6]
-	h7 := acc[21] + aby*acc[6]
-	h8 := acc[24] + abz*acc[6]
-	h9 := acc[10] + abx*acc[1]
-	h10 := acc[13] + aby*acc[1]
-	h11 := acc[16] + abz*acc[1]
-	h12 := acc[13] + abx*acc[4]
-	h13 := acc[19] + aby*acc[4]
-	h14 := acc[22] + abz*acc[4]
-	h15 := acc[16] + abx*acc[7]
-	h16 := acc[22] + aby*acc[7]
-	h17 := acc[25] + abz*acc[7]
-	h18 := acc[11] + abx*acc[2]
-	h19 := acc[14] + aby*acc[2]
-	h20 := acc[17] + abz*acc[2]
-	h21 := acc[14] + abx*acc[5]
-	h22 := acc[20] + aby*acc[5]
-	h23 := acc[23] + abz*acc[5]
-	h24 := acc[17] + abx*acc[8]
-	h25 := acc[23] + aby*acc[8]
-	h26 := acc[26] + abz*acc[8]
+	h0 := a9 + abx*a0
+	h1 := a12 + aby*a0
+	h2 := a15 + abz*a0
+	h3 := a12 + abx*a3
+	h4 := a18 + aby*a3
+	h5 := a21 + abz*a3
+	h6 := a15 + abx*a6
+	h7 := a21 + aby*a6
+	h8 := a24 + abz*a6
+	h9 := a10 + abx*a1
+	h10 := a13 + aby*a1
+	h11 := a16 + abz*a1
+	h12 := a13 + abx*a4
+	h13 := a19 + aby*a4
+	h14 := a22 + abz*a4
+	h15 := a16 + abx*a7
+	h16 := a22 + aby*a7
+	h17 := a25 + abz*a7
+	h18 := a11 + abx*a2
+	h19 := a14 + aby*a2
+	h20 := a17 + abz*a2
+	h21 := a14 + abx*a5
+	h22 := a20 + aby*a5
+	h23 := a23 + abz*a5
+	h24 := a17 + abx*a8
+	h25 := a23 + aby*a8
+	h26 := a26 + abz*a8
 	out[0] = h0
 	out[1] = h9
 	out[2] = h18
@@ -502,8 +512,8 @@ func eriGen1111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f4 = (c[32] + d*c[33]) + d2*(c[34]+d*c[35]) + d4*((c[36]+d*c[37])+d2*(c[38]+d*c[39]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -937,7 +947,7 @@ func eriGen1111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 
 // eriGen2000 computes Cartesian (ds|ss) integrals.
 func eriGen2000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [6]float64
+	var a0, a1, a2, a3, a4, a5 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -961,7 +971,7 @@ func eriGen2000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[24]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
@@ -989,22 +999,27 @@ func eriGen2000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v12 := pay*v6 + wpy*v7 + (oo2z*f0 - roz*f1)
 			v13 := pay*v9 + wpy*v10
 			v14 := paz*v9 + wpz*v10 + (oo2z*f0 - roz*f1)
-			acc[0] += v5
-			acc[1] += v8
-			acc[2] += v11
-			acc[3] += v12
-			acc[4] += v13
-			acc[5] += v14
+			a0 += v5
+			a1 += v8
+			a2 += v11
+			a3 += v12
+			a4 += v13
+			a5 += v14
 		}
 	}
 	out := (*[6]float64)(w.out)
-	*out = acc
+	out[0] = a0
+	out[1] = a1
+	out[2] = a2
+	out[3] = a3
+	out[4] = a4
+	out[5] = a5
 	return out[:]
 }
 
 // eriGen2010 computes Cartesian (ds|ps) integrals.
 func eriGen2010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [18]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11, a12, a13, a14, a15, a16, a17 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -1028,7 +1043,7 @@ func eriGen2010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[32]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
@@ -1093,34 +1108,51 @@ func eriGen2010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v40 := qcx*v38 + wqx*v39
 			v41 := qcy*v38 + wqy*v39
 			v42 := qcz*v38 + wqz*v39 + 2*oo2zn*v21
-			acc[0] += v9
-			acc[1] += v10
-			acc[2] += v11
-			acc[3] += v17
-			acc[4] += v18
-			acc[5] += v19
-			acc[6] += v25
-			acc[7] += v26
-			acc[8] += v27
-			acc[9] += v30
-			acc[10] += v31
-			acc[11] += v32
-			acc[12] += v35
-			acc[13] += v36
-			acc[14] += v37
-			acc[15] += v40
-			acc[16] += v41
-			acc[17] += v42
+			a0 += v9
+			a1 += v10
+			a2 += v11
+			a3 += v17
+			a4 += v18
+			a5 += v19
+			a6 += v25
+			a7 += v26
+			a8 += v27
+			a9 += v30
+			a10 += v31
+			a11 += v32
+			a12 += v35
+			a13 += v36
+			a14 += v37
+			a15 += v40
+			a16 += v41
+			a17 += v42
 		}
 	}
 	out := (*[18]float64)(w.out)
-	*out = acc
+	out[0] = a0
+	out[1] = a1
+	out[2] = a2
+	out[3] = a3
+	out[4] = a4
+	out[5] = a5
+	out[6] = a6
+	out[7] = a7
+	out[8] = a8
+	out[9] = a9
+	out[10] = a10
+	out[11] = a11
+	out[12] = a12
+	out[13] = a13
+	out[14] = a14
+	out[15] = a15
+	out[16] = a16
+	out[17] = a17
 	return out[:]
 }
 
 // eriGen2011 computes Cartesian (ds|pp) integrals.
 func eriGen2011(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [54]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11, a12, a13, a14, a15, a16, a17, a18, a19, a20, a21, a22, a23, a24, a25, a26, a27, a28, a29, a30, a31, a32, a33, a34, a35, a36, a37, a38, a39, a40, a41, a42, a43, a44, a45, a46, a47, a48, a49, a50, a51, a52, a53 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -1144,8 +1176,8 @@ func eriGen2011(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f4 = (c[32] + d*c[33]) + d2*(c[34]+d*c[35]) + d4*((c[36]+d*c[37])+d2*(c[38]+d*c[39]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -1292,126 +1324,126 @@ func eriGen2011(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v113 := qcy*v104 + wqy*v109 + (oo2e*v101 - roe*v102)
 			v114 := qcy*v105 + wqy*v111
 			v115 := qcz*v105 + wqz*v111 + (oo2e*v101 - roe*v102) + 2*oo2zn*v66
-			acc[0] += v9
-			acc[1] += v10
-			acc[2] += v11
-			acc[3] += v17
-			acc[4] += v20
-			acc[5] += v23
-			acc[6] += v24
-			acc[7] += v25
-			acc[8] += v26
-			acc[9] += v32
-			acc[10] += v33
-			acc[11] += v34
-			acc[12] += v39
-			acc[13] += v42
-			acc[14] += v45
-			acc[15] += v46
-			acc[16] += v47
-			acc[17] += v48
-			acc[18] += v54
-			acc[19] += v55
-			acc[20] += v56
-			acc[21] += v61
-			acc[22] += v64
-			acc[23] += v67
-			acc[24] += v68
-			acc[25] += v69
-			acc[26] += v70
-			acc[27] += v73
-			acc[28] += v74
-			acc[29] += v75
-			acc[30] += v78
-			acc[31] += v80
-			acc[32] += v82
-			acc[33] += v83
-			acc[34] += v84
-			acc[35] += v85
-			acc[36] += v88
-			acc[37] += v89
-			acc[38] += v90
-			acc[39] += v93
-			acc[40] += v95
-			acc[41] += v97
-			acc[42] += v98
-			acc[43] += v99
-			acc[44] += v100
-			acc[45] += v103
-			acc[46] += v104
-			acc[47] += v105
-			acc[48] += v108
-			acc[49] += v110
-			acc[50] += v112
-			acc[51] += v113
-			acc[52] += v114
-			acc[53] += v115
+			a0 += v9
+			a1 += v10
+			a2 += v11
+			a3 += v17
+			a4 += v20
+			a5 += v23
+			a6 += v24
+			a7 += v25
+			a8 += v26
+			a9 += v32
+			a10 += v33
+			a11 += v34
+			a12 += v39
+			a13 += v42
+			a14 += v45
+			a15 += v46
+			a16 += v47
+			a17 += v48
+			a18 += v54
+			a19 += v55
+			a20 += v56
+			a21 += v61
+			a22 += v64
+			a23 += v67
+			a24 += v68
+			a25 += v69
+			a26 += v70
+			a27 += v73
+			a28 += v74
+			a29 += v75
+			a30 += v78
+			a31 += v80
+			a32 += v82
+			a33 += v83
+			a34 += v84
+			a35 += v85
+			a36 += v88
+			a37 += v89
+			a38 += v90
+			a39 += v93
+			a40 += v95
+			a41 += v97
+			a42 += v98
+			a43 += v99
+			a44 += v100
+			a45 += v103
+			a46 += v104
+			a47 += v105
+			a48 += v108
+			a49 += v110
+			a50 += v112
+			a51 += v113
+			a52 += v114
+			a53 += v115
 		}
 	}
 	cdx := ket.ab[0]
 	cdy := ket.ab[1]
 	cdz := ket.ab[2]
 	out := (*[54]float64)(w.out)
-	out[0] = acc[3] + cdx*acc[0]
-	out[1] = acc[4] + cdy*acc[0]
-	out[2] = acc[5] + cdz*acc[0]
-	out[3] = acc[4] + cdx*acc[1]
-	out[4] = acc[6] + cdy*acc[1]
-	out[5] = acc[7] + cdz*acc[1]
-	out[6] = acc[5] + cdx*acc[2]
-	out[7] = acc[7] + cdy*acc[2]
-	out[8] = acc[8] + cdz*acc[2]
-	out[9] = acc[12] + cdx*acc[9]
-	out[10] = acc[13] + cdy*acc[9]
-	out[11] = acc[14] + cdz*acc[9]
-	out[12] = acc[13] + cdx*acc[10]
-	out[13] = acc[15] + cdy*acc[10]
-	out[14] = acc[16] + cdz*acc[10]
-	out[15] = acc[14] + cdx*acc[11]
-	out[16] = acc[16] + cdy*acc[11]
-	out[17] = acc[17] + cdz*acc[11]
-	out[18] = acc[21] + cdx*acc[18]
-	out[19] = acc[22] + cdy*acc[18]
-	out[20] = acc[23] + cdz*acc[18]
-	out[21] = acc[22] + cdx*acc[19]
-	out[22] = acc[24] + cdy*acc[19]
-	out[23] = acc[25] + cdz*acc[19]
-	out[24] = acc[23] + cdx*acc[20]
-	out[25] = acc[25] + cdy*acc[20]
-	out[26] = acc[26] + cdz*acc[20]
-	out[27] = acc[30] + cdx*acc[27]
-	out[28] = acc[31] + cdy*acc[27]
-	out[29] = acc[32] + cdz*acc[27]
-	out[30] = acc[31] + cdx*acc[28]
-	out[31] = acc[33] + cdy*acc[28]
-	out[32] = acc[34] + cdz*acc[28]
-	out[33] = acc[32] + cdx*acc[29]
-	out[34] = acc[34] + cdy*acc[29]
-	out[35] = acc[35] + cdz*acc[29]
-	out[36] = acc[39] + cdx*acc[36]
-	out[37] = acc[40] + cdy*acc[36]
-	out[38] = acc[41] + cdz*acc[36]
-	out[39] = acc[40] + cdx*acc[37]
-	out[40] = acc[42] + cdy*acc[37]
-	out[41] = acc[43] + cdz*acc[37]
-	out[42] = acc[41] + cdx*acc[38]
-	out[43] = acc[43] + cdy*acc[38]
-	out[44] = acc[44] + cdz*acc[38]
-	out[45] = acc[48] + cdx*acc[45]
-	out[46] = acc[49] + cdy*acc[45]
-	out[47] = acc[50] + cdz*acc[45]
-	out[48] = acc[49] + cdx*acc[46]
-	out[49] = acc[51] + cdy*acc[46]
-	out[50] = acc[52] + cdz*acc[46]
-	out[51] = acc[50] + cdx*acc[47]
-	out[52] = acc[52] + cdy*acc[47]
-	out[53] = acc[53] + cdz*acc[47]
+	out[0] = a3 + cdx*a0
+	out[1] = a4 + cdy*a0
+	out[2] = a5 + cdz*a0
+	out[3] = a4 + cdx*a1
+	out[4] = a6 + cdy*a1
+	out[5] = a7 + cdz*a1
+	out[6] = a5 + cdx*a2
+	out[7] = a7 + cdy*a2
+	out[8] = a8 + cdz*a2
+	out[9] = a12 + cdx*a9
+	out[10] = a13 + cdy*a9
+	out[11] = a14 + cdz*a9
+	out[12] = a13 + cdx*a10
+	out[13] = a15 + cdy*a10
+	out[14] = a16 + cdz*a10
+	out[15] = a14 + cdx*a11
+	out[16] = a16 + cdy*a11
+	out[17] = a17 + cdz*a11
+	out[18] = a21 + cdx*a18
+	out[19] = a22 + cdy*a18
+	out[20] = a23 + cdz*a18
+	out[21] = a22 + cdx*a19
+	out[22] = a24 + cdy*a19
+	out[23] = a25 + cdz*a19
+	out[24] = a23 + cdx*a20
+	out[25] = a25 + cdy*a20
+	out[26] = a26 + cdz*a20
+	out[27] = a30 + cdx*a27
+	out[28] = a31 + cdy*a27
+	out[29] = a32 + cdz*a27
+	out[30] = a31 + cdx*a28
+	out[31] = a33 + cdy*a28
+	out[32] = a34 + cdz*a28
+	out[33] = a32 + cdx*a29
+	out[34] = a34 + cdy*a29
+	out[35] = a35 + cdz*a29
+	out[36] = a39 + cdx*a36
+	out[37] = a40 + cdy*a36
+	out[38] = a41 + cdz*a36
+	out[39] = a40 + cdx*a37
+	out[40] = a42 + cdy*a37
+	out[41] = a43 + cdz*a37
+	out[42] = a41 + cdx*a38
+	out[43] = a43 + cdy*a38
+	out[44] = a44 + cdz*a38
+	out[45] = a48 + cdx*a45
+	out[46] = a49 + cdy*a45
+	out[47] = a50 + cdz*a45
+	out[48] = a49 + cdx*a46
+	out[49] = a51 + cdy*a46
+	out[50] = a52 + cdz*a46
+	out[51] = a50 + cdx*a47
+	out[52] = a52 + cdy*a47
+	out[53] = a53 + cdz*a47
 	return out[:]
 }
 
 // eriGen2020 computes Cartesian (ds|ds) integrals.
 func eriGen2020(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [36]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11, a12, a13, a14, a15, a16, a17, a18, a19, a20, a21, a22, a23, a24, a25, a26, a27, a28, a29, a30, a31, a32, a33, a34, a35 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -1435,8 +1467,8 @@ func eriGen2020(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f4 = (c[32] + d*c[33]) + d2*(c[34]+d*c[35]) + d4*((c[36]+d*c[37])+d2*(c[38]+d*c[39]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -1583,52 +1615,87 @@ func eriGen2020(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v113 := qcy*v107 + wqy*v108 + (oo2e*v101 - roe*v102)
 			v114 := qcy*v110 + wqy*v111
 			v115 := qcz*v110 + wqz*v111 + (oo2e*v101 - roe*v102) + 2*oo2zn*v66
-			acc[0] += v15
-			acc[1] += v19
-			acc[2] += v23
-			acc[3] += v24
-			acc[4] += v25
-			acc[5] += v26
-			acc[6] += v37
-			acc[7] += v41
-			acc[8] += v45
-			acc[9] += v46
-			acc[10] += v47
-			acc[11] += v48
-			acc[12] += v59
-			acc[13] += v63
-			acc[14] += v67
-			acc[15] += v68
-			acc[16] += v69
-			acc[17] += v70
-			acc[18] += v76
-			acc[19] += v79
-			acc[20] += v82
-			acc[21] += v83
-			acc[22] += v84
-			acc[23] += v85
-			acc[24] += v91
-			acc[25] += v94
-			acc[26] += v97
-			acc[27] += v98
-			acc[28] += v99
-			acc[29] += v100
-			acc[30] += v106
-			acc[31] += v109
-			acc[32] += v112
-			acc[33] += v113
-			acc[34] += v114
-			acc[35] += v115
+			a0 += v15
+			a1 += v19
+			a2 += v23
+			a3 += v24
+			a4 += v25
+			a5 += v26
+			a6 += v37
+			a7 += v41
+			a8 += v45
+			a9 += v46
+			a10 += v47
+			a11 += v48
+			a12 += v59
+			a13 += v63
+			a14 += v67
+			a15 += v68
+			a16 += v69
+			a17 += v70
+			a18 += v76
+			a19 += v79
+			a20 += v82
+			a21 += v83
+			a22 += v84
+			a23 += v85
+			a24 += v91
+			a25 += v94
+			a26 += v97
+			a27 += v98
+			a28 += v99
+			a29 += v100
+			a30 += v106
+			a31 += v109
+			a32 += v112
+			a33 += v113
+			a34 += v114
+			a35 += v115
 		}
 	}
 	out := (*[36]float64)(w.out)
-	*out = acc
+	out[0] = a0
+	out[1] = a1
+	out[2] = a2
+	out[3] = a3
+	out[4] = a4
+	out[5] = a5
+	out[6] = a6
+	out[7] = a7
+	out[8] = a8
+	out[9] = a9
+	out[10] = a10
+	out[11] = a11
+	out[12] = a12
+	out[13] = a13
+	out[14] = a14
+	out[15] = a15
+	out[16] = a16
+	out[17] = a17
+	out[18] = a18
+	out[19] = a19
+	out[20] = a20
+	out[21] = a21
+	out[22] = a22
+	out[23] = a23
+	out[24] = a24
+	out[25] = a25
+	out[26] = a26
+	out[27] = a27
+	out[28] = a28
+	out[29] = a29
+	out[30] = a30
+	out[31] = a31
+	out[32] = a32
+	out[33] = a33
+	out[34] = a34
+	out[35] = a35
 	return out[:]
 }
 
 // eriGen2100 computes Cartesian (dp|ss) integrals.
 func eriGen2100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [16]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11, a12, a13, a14, a15 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -1652,7 +1719,7 @@ func eriGen2100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[32]float64)(eriBoysTab[k*eriBoysRow:])
+				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
@@ -1699,46 +1766,46 @@ func eriGen2100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v30 := paz*v12 + wpz*v22
 			v31 := pay*v14 + wpy*v27
 			v32 := paz*v14 + wpz*v27 + 2*(oo2z*v9-roz*v10)
-			acc[0] += v5
-			acc[1] += v8
-			acc[2] += v11
-			acc[3] += v12
-			acc[4] += v13
-			acc[5] += v14
-			acc[6] += v18
-			acc[7] += v19
-			acc[8] += v20
-			acc[9] += v23
-			acc[10] += v26
-			acc[11] += v28
-			acc[12] += v29
-			acc[13] += v30
-			acc[14] += v31
-			acc[15] += v32
+			a0 += v5
+			a1 += v8
+			a2 += v11
+			a3 += v12
+			a4 += v13
+			a5 += v14
+			a6 += v18
+			a7 += v19
+			a8 += v20
+			a9 += v23
+			a10 += v26
+			a11 += v28
+			a12 += v29
+			a13 += v30
+			a14 += v31
+			a15 += v32
 		}
 	}
 	abx := bra.ab[0]
 	aby := bra.ab[1]
 	abz := bra.ab[2]
 	out := (*[18]float64)(w.out)
-	h0 := acc[6] + abx*acc[0]
-	h1 := acc[7] + aby*acc[0]
-	h2 := acc[8] + abz*acc[0]
-	h3 := acc[7] + abx*acc[1]
-	h4 := acc[9] + aby*acc[1]
-	h5 := acc[10] + abz*acc[1]
-	h6 := acc[8] + abx*acc[2]
-	h7 := acc[10] + aby*acc[2]
-	h8 := acc[11] + abz*acc[2]
-	h9 := acc[9] + abx*acc[3]
-	h10 := acc[12] + aby*acc[3]
-	h11 := acc[13] + abz*acc[3]
-	h12 := acc[10] + abx*acc[4]
-	h13 := acc[13] + aby*acc[4]
-	h14 := acc[14] + abz*acc[4]
-	h15 := acc[11] + abx*acc[5]
-	h16 := acc[14] + aby*acc[5]
-	h17 := acc[15] + abz*acc[5]
+	h0 := a6 + abx*a0
+	h1 := a7 + aby*a0
+	h2 := a8 + abz*a0
+	h3 := a7 + abx*a1
+	h4 := a9 + aby*a1
+	h5 := a10 + abz*a1
+	h6 := a8 + abx*a2
+	h7 := a10 + aby*a2
+	h8 := a11 + abz*a2
+	h9 := a9 + abx*a3
+	h10 := a12 + aby*a3
+	h11 := a13 + abz*a3
+	h12 := a10 + abx*a4
+	h13 := a13 + aby*a4
+	h14 := a14 + abz*a4
+	h15 := a11 + abx*a5
+	h16 := a14 + aby*a5
+	h17 := a15 + abz*a5
 	out[0] = h0
 	out[1] = h1
 	out[2] = h2
@@ -1762,7 +1829,7 @@ func eriGen2100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 
 // eriGen2110 computes Cartesian (dp|ps) integrals.
 func eriGen2110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [48]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11, a12, a13, a14, a15, a16, a17, a18, a19, a20, a21, a22, a23, a24, a25, a26, a27, a28, a29, a30, a31, a32, a33, a34, a35, a36, a37, a38, a39, a40, a41, a42, a43, a44, a45, a46, a47 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -1786,8 +1853,8 @@ func eriGen2110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f4 = (c[32] + d*c[33]) + d2*(c[34]+d*c[35]) + d4*((c[36]+d*c[37])+d2*(c[38]+d*c[39]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -1917,114 +1984,114 @@ func eriGen2110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v98 := qcx*v96 + wqx*v97
 			v99 := qcy*v96 + wqy*v97
 			v100 := qcz*v96 + wqz*v97 + 3*oo2zn*v39
-			acc[0] += v9
-			acc[1] += v10
-			acc[2] += v11
-			acc[3] += v17
-			acc[4] += v18
-			acc[5] += v19
-			acc[6] += v25
-			acc[7] += v26
-			acc[8] += v27
-			acc[9] += v30
-			acc[10] += v31
-			acc[11] += v32
-			acc[12] += v35
-			acc[13] += v36
-			acc[14] += v37
-			acc[15] += v40
-			acc[16] += v41
-			acc[17] += v42
-			acc[18] += v48
-			acc[19] += v49
-			acc[20] += v50
-			acc[21] += v53
-			acc[22] += v54
-			acc[23] += v55
-			acc[24] += v58
-			acc[25] += v59
-			acc[26] += v60
-			acc[27] += v65
-			acc[28] += v66
-			acc[29] += v67
-			acc[30] += v72
-			acc[31] += v73
-			acc[32] += v74
-			acc[33] += v78
-			acc[34] += v79
-			acc[35] += v80
-			acc[36] += v83
-			acc[37] += v84
-			acc[38] += v85
-			acc[39] += v88
-			acc[40] += v89
-			acc[41] += v90
-			acc[42] += v93
-			acc[43] += v94
-			acc[44] += v95
-			acc[45] += v98
-			acc[46] += v99
-			acc[47] += v100
+			a0 += v9
+			a1 += v10
+			a2 += v11
+			a3 += v17
+			a4 += v18
+			a5 += v19
+			a6 += v25
+			a7 += v26
+			a8 += v27
+			a9 += v30
+			a10 += v31
+			a11 += v32
+			a12 += v35
+			a13 += v36
+			a14 += v37
+			a15 += v40
+			a16 += v41
+			a17 += v42
+			a18 += v48
+			a19 += v49
+			a20 += v50
+			a21 += v53
+			a22 += v54
+			a23 += v55
+			a24 += v58
+			a25 += v59
+			a26 += v60
+			a27 += v65
+			a28 += v66
+			a29 += v67
+			a30 += v72
+			a31 += v73
+			a32 += v74
+			a33 += v78
+			a34 += v79
+			a35 += v80
+			a36 += v83
+			a37 += v84
+			a38 += v85
+			a39 += v88
+			a40 += v89
+			a41 += v90
+			a42 += v93
+			a43 += v94
+			a44 += v95
+			a45 += v98
+			a46 += v99
+			a47 += v100
 		}
 	}
 	abx := bra.ab[0]
 	aby := bra.ab[1]
 	abz := bra.ab[2]
 	out := (*[54]float64)(w.out)
-	h0 := acc[18] + abx*acc[0]
-	h1 := acc[21] + aby*acc[0]
-	h2 := acc[24] + abz*acc[0]
-	h3 := acc[21] + abx*acc[3]
-	h4 := acc[27] + aby*acc[3]
-	h5 := acc[30] + abz*acc[3]
-	h6 := acc[24] + abx*acc[6]
-	h7 := acc[30] + aby*acc[6]
-	h8 := acc[33] + abz*acc[6]
-	h9 := acc[27] + abx*acc[9]
-	h10 := acc[36] + aby*acc[9]
-	h11 := acc[39] + abz*acc[9]
-	h12 := acc[30] + abx*acc[12]
-	h13 := acc[39] + aby*acc[12]
-	h14 := acc[42] + abz*acc[12]
-	h15 := acc[33] + abx*acc[15]
-	h16 := acc[42] + aby*acc[15]
-	h17 := acc[45] + abz*acc[15]
-	h18 := acc[19] + abx*acc[1]
-	h19 := acc[22] + aby*acc[1]
-	h20 := acc[25] + abz*acc[1]
-	h21 := acc[22] + abx*acc[4]
-	h22 := acc[28] + aby*acc[4]
-	h23 := acc[31] + abz*acc[4]
-	h24 := acc[25] + abx*acc[7]
-	h25 := acc[31] + aby*acc[7]
-	h26 := acc[34] + abz*acc[7]
-	h27 := acc[28] + abx*acc[10]
-	h28 := acc[37] + aby*acc[10]
-	h29 := acc[40] + abz*acc[10]
-	h30 := acc[31] + abx*acc[13]
-	h31 := acc[40] + aby*acc[13]
-	h32 := acc[43] + abz*acc[13]
-	h33 := acc[34] + abx*acc[16]
-	h34 := acc[43] + aby*acc[16]
-	h35 := acc[46] + abz*acc[16]
-	h36 := acc[20] + abx*acc[2]
-	h37 := acc[23] + aby*acc[2]
-	h38 := acc[26] + abz*acc[2]
-	h39 := acc[23] + abx*acc[5]
-	h40 := acc[29] + aby*acc[5]
-	h41 := acc[32] + abz*acc[5]
-	h42 := acc[26] + abx*acc[8]
-	h43 := acc[32] + aby*acc[8]
-	h44 := acc[35] + abz*acc[8]
-	h45 := acc[29] + abx*acc[11]
-	h46 := acc[38] + aby*acc[11]
-	h47 := acc[41] + abz*acc[11]
-	h48 := acc[32] + abx*acc[14]
-	h49 := acc[41] + aby*acc[14]
-	h50 := acc[44] + abz*acc[14]
-	h51 := acc[35] + abx*acc[17]
-	h52 := acc[44] + aby*acc[17]
-	h53 := acc[47] + abz*acc[17]
+	h0 := a18 + abx*a0
+	h1 := a21 + aby*a0
+	h2 := a24 + abz*a0
+	h3 := a21 + abx*a3
+	h4 := a27 + aby*a3
+	h5 := a30 + abz*a3
+	h6 := a24 + abx*a6
+	h7 := a30 + aby*a6
+	h8 := a33 + abz*a6
+	h9 := a27 + abx*a9
+	h10 := a36 + aby*a9
+	h11 := a39 + abz*a9
+	h12 := a30 + abx*a12
+	h13 := a39 + aby*a12
+	h14 := a42 + abz*a12
+	h15 := a33 + abx*a15
+	h16 := a42 + aby*a15
+	h17 := a45 + abz*a15
+	h18 := a19 + abx*a1
+	h19 := a22 + aby*a1
+	h20 := a25 + abz*a1
+	h21 := a22 + abx*a4
+	h22 := a28 + aby*a4
+	h23 := a31 + abz*a4
+	h24 := a25 + abx*a7
+	h25 := a31 + aby*a7
+	h26 := a34 + abz*a7
+	h27 := a28 + abx*a10
+	h28 := a37 + aby*a10
+	h29 := a40 + abz*a10
+	h30 := a31 + abx*a13
+	h31 := a40 + aby*a13
+	h32 := a43 + abz*a13
+	h33 := a34 + abx*a16
+	h34 := a43 + aby*a16
+	h35 := a46 + abz*a16
+	h36 := a20 + abx*a2
+	h37 := a23 + aby*a2
+	h38 := a26 + abz*a2
+	h39 := a23 + abx*a5
+	h40 := a29 + aby*a5
+	h41 := a32 + abz*a5
+	h42 := a26 + abx*a8
+	h43 := a32 + aby*a8
+	h44 := a35 + abz*a8
+	h45 := a29 + abx*a11
+	h46 := a38 + aby*a11
+	h47 := a41 + abz*a11
+	h48 := a32 + abx*a14
+	h49 := a41 + aby*a14
+	h50 := a44 + abz*a14
+	h51 := a35 + abx*a17
+	h52 := a44 + aby*a17
+	h53 := a47 + abz*a17
 	out[0] = h0
 	out[1] = h18
 	out[2] = h36
@@ -2108,8 +2175,8 @@ func eriGen2111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+40:])
-				f5 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f5 = (c[40] + d*c[41]) + d2*(c[42]+d*c[43]) + d4*((c[44]+d*c[45])+d2*(c[46]+d*c[47]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f4 = (t2*f5 + ex) * 0.1111111111111111
@@ -2922,8 +2989,8 @@ func eriGen2120(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+40:])
-				f5 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f5 = (c[40] + d*c[41]) + d2*(c[42]+d*c[43]) + d4*((c[44]+d*c[45])+d2*(c[46]+d*c[47]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f4 = (t2*f5 + ex) * 0.1111111111111111
@@ -3577,8 +3644,8 @@ func eriGen2121(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+48:])
-				f6 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f6 = (c[48] + d*c[49]) + d2*(c[50]+d*c[51]) + d4*((c[52]+d*c[53])+d2*(c[54]+d*c[55]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f5 = (t2*f6 + ex) * 0.090909090909090912
@@ -5085,7 +5152,7 @@ func eriGen2121(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 
 // eriGen2200 computes Cartesian (dd|ss) integrals.
 func eriGen2200(w *ERIWorkspace, bra, ket *eriPair) []float64 {
-	var acc [31]float64
+	var a0, a1, a2, a3, a4, a5, a6, a7, a8, a9, a10, a11, a12, a13, a14, a15, a16, a17, a18, a19, a20, a21, a22, a23, a24, a25, a26, a27, a28, a29, a30 float64
 	for pi := range bra.prims {
 		p := &bra.prims[pi]
 		if p.bnd*ket.maxBnd < eriQuartetThreshold {
@@ -5109,8 +5176,8 @@ func eriGen2200(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+32:])
-				f4 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f4 = (c[32] + d*c[33]) + d2*(c[34]+d*c[35]) + d4*((c[36]+d*c[37])+d2*(c[38]+d*c[39]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f3 = (t2*f4 + ex) * 0.14285714285714285
@@ -5194,121 +5261,121 @@ func eriGen2200(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			v60 := pay*v31 + wpy*v54 + (oo2z*v14 - roz*v27)
 			v61 := pay*v32 + wpy*v56
 			v62 := paz*v32 + wpz*v56 + 3*(oo2z*v14-roz*v27)
-			acc[0] += v5
-			acc[1] += v8
-			acc[2] += v11
-			acc[3] += v12
-			acc[4] += v13
-			acc[5] += v14
-			acc[6] += v18
-			acc[7] += v19
-			acc[8] += v20
-			acc[9] += v23
-			acc[10] += v26
-			acc[11] += v28
-			acc[12] += v29
-			acc[13] += v30
-			acc[14] += v31
-			acc[15] += v32
-			acc[16] += v37
-			acc[17] += v38
-			acc[18] += v39
-			acc[19] += v43
-			acc[20] += v45
-			acc[21] += v49
-			acc[22] += v51
-			acc[23] += v53
-			acc[24] += v55
-			acc[25] += v57
-			acc[26] += v58
-			acc[27] += v59
-			acc[28] += v60
-			acc[29] += v61
-			acc[30] += v62
+			a0 += v5
+			a1 += v8
+			a2 += v11
+			a3 += v12
+			a4 += v13
+			a5 += v14
+			a6 += v18
+			a7 += v19
+			a8 += v20
+			a9 += v23
+			a10 += v26
+			a11 += v28
+			a12 += v29
+			a13 += v30
+			a14 += v31
+			a15 += v32
+			a16 += v37
+			a17 += v38
+			a18 += v39
+			a19 += v43
+			a20 += v45
+			a21 += v49
+			a22 += v51
+			a23 += v53
+			a24 += v55
+			a25 += v57
+			a26 += v58
+			a27 += v59
+			a28 += v60
+			a29 += v61
+			a30 += v62
 		}
 	}
 	abx := bra.ab[0]
 	aby := bra.ab[1]
 	abz := bra.ab[2]
 	out := (*[36]float64)(w.out)
-	h0 := acc[16] + abx*acc[6]
-	h1 := acc[6] + abx*acc[0]
+	h0 := a16 + abx*a6
+	h1 := a6 + abx*a0
 	h2 := h0 + abx*h1
-	h3 := acc[17] + aby*acc[6]
-	h4 := acc[7] + aby*acc[0]
+	h3 := a17 + aby*a6
+	h4 := a7 + aby*a0
 	h5 := h3 + abx*h4
-	h6 := acc[18] + abz*acc[6]
-	h7 := acc[8] + abz*acc[0]
+	h6 := a18 + abz*a6
+	h7 := a8 + abz*a0
 	h8 := h6 + abx*h7
-	h9 := acc[19] + aby*acc[7]
+	h9 := a19 + aby*a7
 	h10 := h9 + aby*h4
-	h11 := acc[20] + abz*acc[7]
+	h11 := a20 + abz*a7
 	h12 := h11 + aby*h7
-	h13 := acc[21] + abz*acc[8]
+	h13 := a21 + abz*a8
 	h14 := h13 + abz*h7
-	h15 := acc[17] + abx*acc[7]
-	h16 := acc[7] + abx*acc[1]
+	h15 := a17 + abx*a7
+	h16 := a7 + abx*a1
 	h17 := h15 + abx*h16
-	h18 := acc[9] + aby*acc[1]
+	h18 := a9 + aby*a1
 	h19 := h9 + abx*h18
-	h20 := acc[10] + abz*acc[1]
+	h20 := a10 + abz*a1
 	h21 := h11 + abx*h20
-	h22 := acc[22] + aby*acc[9]
+	h22 := a22 + aby*a9
 	h23 := h22 + aby*h18
-	h24 := acc[23] + abz*acc[9]
+	h24 := a23 + abz*a9
 	h25 := h24 + aby*h20
-	h26 := acc[24] + abz*acc[10]
+	h26 := a24 + abz*a10
 	h27 := h26 + abz*h20
-	h28 := acc[18] + abx*acc[8]
-	h29 := acc[8] + abx*acc[2]
+	h28 := a18 + abx*a8
+	h29 := a8 + abx*a2
 	h30 := h28 + abx*h29
-	h31 := acc[20] + aby*acc[8]
-	h32 := acc[10] + aby*acc[2]
+	h31 := a20 + aby*a8
+	h32 := a10 + aby*a2
 	h33 := h31 + abx*h32
-	h34 := acc[11] + abz*acc[2]
+	h34 := a11 + abz*a2
 	h35 := h13 + abx*h34
-	h36 := acc[23] + aby*acc[10]
+	h36 := a23 + aby*a10
 	h37 := h36 + aby*h32
 	h38 := h26 + aby*h34
-	h39 := acc[25] + abz*acc[11]
+	h39 := a25 + abz*a11
 	h40 := h39 + abz*h34
-	h41 := acc[19] + abx*acc[9]
-	h42 := acc[9] + abx*acc[3]
+	h41 := a19 + abx*a9
+	h42 := a9 + abx*a3
 	h43 := h41 + abx*h42
-	h44 := acc[12] + aby*acc[3]
+	h44 := a12 + aby*a3
 	h45 := h22 + abx*h44
-	h46 := acc[13] + abz*acc[3]
+	h46 := a13 + abz*a3
 	h47 := h24 + abx*h46
-	h48 := acc[26] + aby*acc[12]
+	h48 := a26 + aby*a12
 	h49 := h48 + aby*h44
-	h50 := acc[27] + abz*acc[12]
+	h50 := a27 + abz*a12
 	h51 := h50 + aby*h46
-	h52 := acc[28] + abz*acc[13]
+	h52 := a28 + abz*a13
 	h53 := h52 + abz*h46
-	h54 := acc[20] + abx*acc[10]
-	h55 := acc[10] + abx*acc[4]
+	h54 := a20 + abx*a10
+	h55 := a10 + abx*a4
 	h56 := h54 + abx*h55
-	h57 := acc[13] + aby*acc[4]
+	h57 := a13 + aby*a4
 	h58 := h36 + abx*h57
-	h59 := acc[14] + abz*acc[4]
+	h59 := a14 + abz*a4
 	h60 := h26 + abx*h59
-	h61 := acc[27] + aby*acc[13]
+	h61 := a27 + aby*a13
 	h62 := h61 + aby*h57
 	h63 := h52 + aby*h59
-	h64 := acc[29] + abz*acc[14]
+	h64 := a29 + abz*a14
 	h65 := h64 + abz*h59
-	h66 := acc[21] + abx*acc[11]
-	h67 := acc[11] + abx*acc[5]
+	h66 := a21 + abx*a11
+	h67 := a11 + abx*a5
 	h68 := h66 + abx*h67
-	h69 := acc[24] + aby*acc[11]
-	h70 := acc[14] + aby*acc[5]
+	h69 := a24 + aby*a11
+	h70 := a14 + aby*a5
 	h71 := h69 + abx*h70
-	h72 := acc[15] + abz*acc[5]
+	h72 := a15 + abz*a5
 	h73 := h39 + abx*h72
-	h74 := acc[28] + aby*acc[14]
+	h74 := a28 + aby*a14
 	h75 := h74 + aby*h70
 	h76 := h64 + aby*h72
-	h77 := acc[30] + abz*acc[15]
+	h77 := a30 + abz*a15
 	h78 := h77 + abz*h72
 	out[0] = h2
 	out[1] = h5
@@ -5375,8 +5442,8 @@ func eriGen2210(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+40:])
-				f5 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f5 = (c[40] + d*c[41]) + d2*(c[42]+d*c[43]) + d4*((c[44]+d*c[45])+d2*(c[46]+d*c[47]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f4 = (t2*f5 + ex) * 0.1111111111111111
@@ -6071,8 +6138,8 @@ func eriGen2211(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+48:])
-				f6 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f6 = (c[48] + d*c[49]) + d2*(c[50]+d*c[51]) + d4*((c[52]+d*c[53])+d2*(c[54]+d*c[55]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f5 = (t2*f6 + ex) * 0.090909090909090912
@@ -7973,8 +8040,8 @@ func eriGen2220(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+48:])
-				f6 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f6 = (c[48] + d*c[49]) + d2*(c[50]+d*c[51]) + d4*((c[52]+d*c[53])+d2*(c[54]+d*c[55]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f5 = (t2*f6 + ex) * 0.090909090909090912
@@ -9434,8 +9501,8 @@ func eriGen2221(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+56:])
-				f7 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f7 = (c[56] + d*c[57]) + d2*(c[58]+d*c[59]) + d4*((c[60]+d*c[61])+d2*(c[62]+d*c[63]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f6 = (t2*f7 + ex) * 0.076923076923076927
@@ -13018,8 +13085,8 @@ func eriGen2222(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
 				d4 := d2 * d2
-				c := (*[8]float64)(eriBoysTab[k*eriBoysRow+64:])
-				f8 = (c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7]))
+				c := &eriBoysTab[k]
+				f8 = (c[64] + d*c[65]) + d2*(c[66]+d*c[67]) + d4*((c[68]+d*c[69])+d2*(c[70]+d*c[71]))
 				ex := math.Exp(-t)
 				t2 := 2 * t
 				f7 = (t2*f8 + ex) * 0.066666666666666666

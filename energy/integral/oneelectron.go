@@ -6,7 +6,7 @@ import "math"
 // A. Saika, J. Chem. Phys. 84, 3963 (1986)). Overlap, kinetic energy and
 // dipole integrals factor into one-dimensional overlaps; the nuclear
 // attraction uses their two-centre vertical recurrence with auxiliary
-// orders m (eq. A20) over the Boys function.
+// orders m over the Boys function.
 //
 // Results are full symmetric nbf×nbf row-major matrices over the final
 // basis functions (spherical or Cartesian as each shell says). One-electron
@@ -188,7 +188,7 @@ func globalIndex(lx, ly, lz int) int {
 // overlap1D fills s (leading dimension dim) with the one-dimensional
 // Obara–Saika overlaps S_ij/S_00 for i ≤ imax, j ≤ jmax:
 // S_{i+1,j} = PA S_ij + (i S_{i−1,j} + j S_{i,j−1})/(2p) and the same with
-// PB for j+1 (Obara & Saika 1986, eq. A2).
+// PB for j+1 (Obara & Saika 1986).
 func overlap1D(s []float64, dim, imax, jmax int, pa, pb, oo2p float64) {
 	s[0] = 1
 	for i := 0; i < imax; i++ {
@@ -267,7 +267,7 @@ func (w *oneWork) overlapBlock(a, b *shellData, out []float64) {
 // kineticBlock writes the contracted Cartesian kinetic-energy block
 // ⟨a|−½∇²|b⟩. The second derivative of the ket Gaussian,
 // d²/dx² x_B^j e^{−βx_B²} = j(j−1) x_B^{j−2} − 2β(2j+1) x_B^j + 4β² x_B^{j+2},
-// reduces it to one-dimensional overlaps (Obara & Saika 1986, eq. A12).
+// reduces it to one-dimensional overlaps (as in Obara & Saika 1986).
 func (w *oneWork) kineticBlock(a, b *shellData, out []float64) {
 	ca, cb := cartesianExponents(a.l), cartesianExponents(b.l)
 	nb := len(cb)
@@ -352,11 +352,11 @@ func (w *oneWork) dipoleBlock(a, b *shellData, origin [3]float64, out [3][]float
 //
 // The auxiliary integrals Θ^(m)(a|b) are built per primitive pair and
 // charge by the two-centre vertical recurrence of Obara & Saika (1986),
-// eq. A20, on the bra and then on the ket, without a horizontal transfer:
+// on the bra and then on the ket, without a horizontal transfer:
 // a transfer on contracted integrals must start from a single centre for
 // every primitive pair, and when that centre holds the diffuse function
 // far from a tight partner the intermediate (e|0) grow like |A−B|^{la+lb}
-// and the transfer cancels them (losing up to 1e−9 relative for h
+// and the transfer cancels them (losing of order 1e−9 relative for h
 // functions 4 bohr apart), whereas P−A and P−B stay small here.
 func (w *oneWork) nuclearBlock(a, b *shellData, charges []float64, centers [][3]float64, out []float64) {
 	la, lb := a.l, b.l
@@ -402,7 +402,7 @@ func (w *oneWork) nuclearBlock(a, b *shellData, charges []float64, centers [][3]
 
 // nuclearVRR fills th[(ia·nB + ib)·M + m] = Θ^(m)(a|b) for all components
 // |a| ≤ la, |b| ≤ lb (global indices ia, ib) and m ≤ la+lb−|a|−|b| from
-// th[m] = Θ^(m)(0|0), by Obara & Saika (1986) eq. A20:
+// th[m] = Θ^(m)(0|0), by the recurrence of Obara & Saika (1986):
 // Θ^(m)(a+1_i|b) = PA_i Θ^(m)(a|b) − PC_i Θ^(m+1)(a|b)
 //
 //   - a_i/(2p) [Θ^(m)(a−1_i|b) − Θ^(m+1)(a−1_i|b)]

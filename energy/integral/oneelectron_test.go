@@ -133,7 +133,7 @@ func TestCartesianDOverlap(t *testing.T) {
 
 // Closed forms for normalized s primitives on centres A and B (textbook;
 // A. Szabo and N. S. Ostlund, "Modern Quantum Chemistry", appendix A,
-// eqs. A.9, A.11, A.33, from memory):
+// from memory):
 // S = (4αβ/p²)^{3/4} e^{−μR²}, T = μ(3 − 2μR²) S,
 // ⟨a|1/r_C|b⟩ = 2√(p/π) F_0(p|P−C|²) S with F_0(x) = ½√(π/x) erf √x,
 // ⟨a|x−O_x|b⟩ = (P−O)_x S, with p = α+β, μ = αβ/p, P = (αA+βB)/p.

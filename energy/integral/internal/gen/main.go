@@ -299,13 +299,21 @@ func genClass(w *bytes.Buffer, la, lb, lc, ld int) {
 	// Accumulate targets.
 	accIdx := func(e, f vec) int { return (cumIndex(e)-cum(la))*nf + cumIndex(f) - cum(lc) }
 	for _, t := range targets {
-		body.p("acc[%d] += %s", accIdx(t.e, t.f), name[t])
+		body.p("%s += %s", accName(accIdx(t.e, t.f), ne*nf), name[t])
 	}
 
 	fmt.Fprintf(w, "\n// %s computes Cartesian (%s%s|%s%s) integrals.\n", funcName(la, lb, lc, ld),
 		letters[la], letters[lb], letters[lc], letters[ld])
 	fmt.Fprintf(w, "func %s(w *ERIWorkspace, bra, ket *eriPair) []float64 {\n", funcName(la, lb, lc, ld))
-	fmt.Fprintf(w, "var acc [%d]float64\n", ne*nf)
+	if ne*nf > accScalarMax {
+		fmt.Fprintf(w, "var acc [%d]float64\n", ne*nf)
+	} else {
+		names := make([]string, ne*nf)
+		for i := range names {
+			names[i] = accName(i, ne*nf)
+		}
+		fmt.Fprintf(w, "var %s float64\n", strings.Join(names, ", "))
+	}
 	fmt.Fprintf(w, "for pi := range bra.prims {\np := &bra.prims[pi]\n")
 	fmt.Fprintf(w, "if p.bnd*ket.maxBnd < eriQuartetThreshold {\nbreak\n}\n")
 	u := body.used
@@ -364,6 +372,19 @@ func genClass(w *bytes.Buffer, la, lb, lc, ld int) {
 	fmt.Fprintf(w, "}\n")
 }
 
+// accScalarMax: classes with at most this many contracted [e0|f0] values
+// accumulate them in scalar variables (kept in registers where possible)
+// rather than an array.
+const accScalarMax = 64
+
+// accName names contracted value i of n.
+func accName(i, n int) string {
+	if n > accScalarMax {
+		return fmt.Sprintf("acc[%d]", i)
+	}
+	return fmt.Sprintf("a%d", i)
+}
+
 var letters = []string{"s", "p", "d", "f", "g", "h"}
 
 // genBoys emits f0 … fL = pref·F_m(t).
@@ -393,13 +414,13 @@ func genBoys(w *bytes.Buffer, L int) {
 		fmt.Fprintf(w, "d2 := d * d\nd4 := d2 * d2\n")
 	}
 	if L <= boysDirectMax {
-		fmt.Fprintf(w, "c := (*[%d]float64)(eriBoysTab[k*eriBoysRow:])\n", (L+1)*8)
+		fmt.Fprintf(w, "c := &eriBoysTab[k]\n")
 		for m := 0; m <= L; m++ {
 			fmt.Fprintf(w, "f%d = pref * (%s)\n", m, horner(m))
 		}
 	} else {
-		fmt.Fprintf(w, "c := (*[8]float64)(eriBoysTab[k*eriBoysRow+%d:])\n", L*8)
-		fmt.Fprintf(w, "f%d = %s\n", L, horner(0))
+		fmt.Fprintf(w, "c := &eriBoysTab[k]\n")
+		fmt.Fprintf(w, "f%d = %s\n", L, horner(L))
 		fmt.Fprintf(w, "ex := math.Exp(-t)\n")
 		fmt.Fprintf(w, "t2 := 2 * t\n")
 		for m := L - 1; m >= 0; m-- {
@@ -425,9 +446,17 @@ func fmtFloat(x float64) string { return fmt.Sprintf("%.17g", x) }
 // genHRR emits the horizontal recursion from acc to out, bra first.
 func genHRR(w *bytes.Buffer, la, lb, lc, ld, nf int) {
 	na, nb, nc, nd := ncart(la), ncart(lb), ncart(lc), ncart(ld)
+	ne := cum(la+lb+1) - cum(la)
 	fmt.Fprintf(w, "out := (*[%d]float64)(w.out)\n", na*nb*nc*nd)
 	if lb == 0 && ld == 0 {
-		fmt.Fprintf(w, "*out = acc\nreturn out[:]\n")
+		if ne*nf > accScalarMax {
+			fmt.Fprintf(w, "*out = acc\nreturn out[:]\n")
+			return
+		}
+		for i := 0; i < na*nc; i++ {
+			fmt.Fprintf(w, "out[%d] = %s\n", i, accName(i, ne*nf))
+		}
+		fmt.Fprintf(w, "return out[:]\n")
 		return
 	}
 	bp := bestHRR(la, lb)
@@ -441,7 +470,7 @@ func genHRR(w *bytes.Buffer, la, lb, lc, ld, nf int) {
 	if lb == 0 {
 		for a := 0; a < na; a++ {
 			for f := 0; f < nf; f++ {
-				gname[a][f] = fmt.Sprintf("acc[%d]", a*nf+f)
+				gname[a][f] = accName(a*nf+f, ne*nf)
 			}
 		}
 	} else {
@@ -449,7 +478,7 @@ func genHRR(w *bytes.Buffer, la, lb, lc, ld, nf int) {
 			nm := map[pairItem]string{}
 			for _, it := range bp.order {
 				if it.b.level() == 0 {
-					nm[it] = fmt.Sprintf("acc[%d]", (cumIndex(it.a)-cum(la))*nf+f)
+					nm[it] = accName((cumIndex(it.a)-cum(la))*nf+f, ne*nf)
 					continue
 				}
 				i := bp.dir[it]
