@@ -28,6 +28,7 @@ type Level struct {
 	AngularFunctions string `json:"angular_functions,omitempty"`
 	Unrestricted     bool   `json:"unrestricted"`
 	GridLevel        int    `json:"grid_level,omitempty"`
+	Dispersion       string `json:"dispersion,omitempty"` // e.g. "d3bj"
 }
 
 // FileScaling records which scale factor fed which number.

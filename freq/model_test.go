@@ -17,7 +17,10 @@ type pairModel struct {
 	nat     int
 	pairs   []morse
 	charges []float64
-	evals   atomic.Int64
+	// comMasses, if set, puts the dipole origin at the centre of mass of
+	// these masses, as SCF surfaces do.
+	comMasses []float64
+	evals     atomic.Int64
 	// cancelAfter, if set, is called with the evaluation count after
 	// every evaluation (to interrupt a calculation in a test).
 	after func(n int64)
@@ -82,10 +85,23 @@ func (p *pairModel) Evaluate(ctx context.Context, x []float64, req gradient.Requ
 		}
 	}
 	if req.Dipole {
+		var com [3]float64
+		if p.comMasses != nil {
+			total := 0.0
+			for a, m := range p.comMasses {
+				total += m
+				for k := 0; k < 3; k++ {
+					com[k] += m * x[3*a+k]
+				}
+			}
+			for k := range com {
+				com[k] /= total
+			}
+		}
 		out.DipoleAU = [3]float64{}
 		for a, q := range p.charges {
 			for k := 0; k < 3; k++ {
-				out.DipoleAU[k] += q * x[3*a+k]
+				out.DipoleAU[k] += q * (x[3*a+k] - com[k])
 			}
 		}
 	}

@@ -11,6 +11,7 @@ import (
 
 	"poise/energy/basis"
 	"poise/energy/dft"
+	"poise/energy/dispersion"
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/molecule"
@@ -79,16 +80,21 @@ type Config struct {
 	// for the life of the surface, so that the energy is a smooth function
 	// of the coordinates (the grid points move with their atoms).
 	Frame *grid.Frame
-	// SCF are the SCF options; XC and Guess are set by the surface.
-	// SCF.Threads is the default thread budget of an evaluation, and
-	// SCF.MemoryBytes its memory budget, scaled down with the threads of
-	// a request that asks for fewer.
+	// SCF are the SCF options; XC and Guess are set by the surface
+	// (SCF.Guess, if given, becomes the first warm start). SCF.Threads is
+	// the default and largest thread budget of an evaluation, and
+	// SCF.MemoryBytes its memory budget, scaled down with the threads of a
+	// request that asks for fewer. SCF.Progress, if set, may be called
+	// from several evaluations at once.
 	SCF scf.Options
 	// Numeric asks for central-difference gradients (Numeric, with Step)
 	// instead of analytic ones.
 	Numeric bool
 	// Step is the central-difference step in bohr; 0 means DefaultStep.
 	Step float64
+	// Dispersion, when set, adds the D3(BJ) correction (energy and
+	// analytic gradient) to every point.
+	Dispersion *dispersion.Params
 }
 
 // SCFSurface is the Surface of a molecule at a level of theory, computed
@@ -231,7 +237,7 @@ func (s *SCFSurface) Evaluate(ctx context.Context, coordsBohr []float64, req Req
 	s.mu.Unlock()
 	st, err := s.compute(ctx, coordsBohr, threads, guess, req.Gradient && !s.cfg.Numeric)
 	if st != nil && st.res != nil {
-		out.EnergyHartree = st.res.EnergyHartree
+		out.EnergyHartree = st.energy
 		out.SCFIterations = st.res.Iterations
 	}
 	if err != nil {
@@ -280,7 +286,7 @@ func (f *fixedStart) Evaluate(ctx context.Context, x []float64, req Request, out
 	}
 	st, err := f.s.compute(ctx, x, threads, f.guess, false)
 	if st != nil && st.res != nil {
-		out.EnergyHartree = st.res.EnergyHartree
+		out.EnergyHartree = st.energy
 		out.SCFIterations = st.res.Iterations
 	}
 	return err
@@ -288,8 +294,9 @@ func (f *fixedStart) Evaluate(ctx context.Context, x []float64, req Request, out
 
 // computed is one SCF point.
 type computed struct {
-	res  *scf.Result
-	grad [][3]float64 // analytic gradient when asked for
+	res    *scf.Result
+	energy float64      // total energy: SCF plus dispersion correction
+	grad   [][3]float64 // analytic gradient when asked for
 }
 
 // compute runs the SCF at coords with threads threads from guess and, with
@@ -344,15 +351,34 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		s.evals.Add(1)
 	}
 	if err != nil {
-		return &computed{res: res}, err
+		e := 0.0
+		if res != nil {
+			e = res.EnergyHartree
+		}
+		return &computed{res: res, energy: e}, err
 	}
-	c := &computed{res: res}
+	c := &computed{res: res, energy: res.EnergyHartree}
 	if analytic {
 		g, err := Analytic(ctx, m, shells, res, pot, threads)
 		if err != nil {
 			return c, err
 		}
 		c.grad = g.Total
+	}
+	if p := s.cfg.Dispersion; p != nil {
+		z, pos := atomsOf(m)
+		d, err := dispersion.Compute(z, pos, *p, analytic)
+		if err != nil {
+			return c, err
+		}
+		c.energy += d.EnergyHartree
+		if analytic {
+			for a := range c.grad {
+				for k := 0; k < 3; k++ {
+					c.grad[a][k] += d.Gradient[a][k]
+				}
+			}
+		}
 	}
 	return c, nil
 }

@@ -24,9 +24,12 @@ const (
 	LinearBend
 	// Dihedral is the torsion angle Atoms[0]–Atoms[1]–Atoms[2]–Atoms[3]
 	// (radians, −π to π): the angle between the planes 0-1-2 and 1-2-3,
-	// positive clockwise looking from 1 to 2. Out-of-plane (improper)
-	// coordinates are dihedrals too.
+	// positive clockwise looking from 1 to 2.
 	Dihedral
+	// OutOfPlane is the dihedral Atoms[0]–Atoms[1]–Atoms[2]–Atoms[3] of
+	// three neighbours of Atoms[3] and Atoms[3] itself (radians, −π to π):
+	// 0 or ±π when Atoms[3] lies in the plane of its neighbours.
+	OutOfPlane
 )
 
 // String names the kind.
@@ -40,6 +43,8 @@ func (k Kind) String() string {
 		return "linear bend"
 	case Dihedral:
 		return "dihedral"
+	case OutOfPlane:
+		return "out-of-plane"
 	}
 	return fmt.Sprintf("Kind(%d)", int(k))
 }
@@ -47,7 +52,7 @@ func (k Kind) String() string {
 // Coordinate is a primitive internal coordinate over atoms numbered from 0.
 type Coordinate struct {
 	Kind  Kind
-	Atoms [4]int // the first 2 (Bond), 3 (Angle, LinearBend) or 4 (Dihedral) are used
+	Atoms [4]int // the first 2 (Bond), 3 (Angle, LinearBend) or 4 (Dihedral, OutOfPlane) are used
 	// Axis is the fixed direction of a LinearBend component (unit vector).
 	Axis [3]float64
 }
@@ -152,7 +157,7 @@ func (c Coordinate) eval(x []float64, d *[4][3]float64, deriv bool) float64 {
 			d[1] = scale(-1, add(d[0], d[2]))
 		}
 		return dot(w, add(eu, ev))
-	case Dihedral:
+	case Dihedral, OutOfPlane:
 		p0, p1, p2, p3 := pos(x, c.Atoms[0]), pos(x, c.Atoms[1]), pos(x, c.Atoms[2]), pos(x, c.Atoms[3])
 		f := sub(p0, p1)
 		g := sub(p1, p2)
@@ -185,7 +190,7 @@ func (c Coordinate) eval(x []float64, d *[4][3]float64, deriv bool) float64 {
 // wrapped into (−π, π].
 func (c Coordinate) difference(q1, q0 float64) float64 {
 	d := q1 - q0
-	if c.Kind == Dihedral {
+	if c.Kind == Dihedral || c.Kind == OutOfPlane {
 		d = wrapAngle(d)
 	}
 	return d

@@ -63,6 +63,12 @@ func equalSlices(a, b []float64) bool {
 	return true
 }
 
+// gradientOnly are criteria that stop, like gonum's GradientThreshold, as
+// soon as the largest gradient component is below maxGradient.
+func gradientOnly(maxGradient float64) Criteria {
+	return Criteria{MaxGradient: maxGradient, RMSGradient: 1, MaxStep: 1, RMSStep: 1, EnergyChange: 1}
+}
+
 // comparisonCase is one surface and start for the comparison.
 type comparisonCase struct {
 	name string
@@ -85,8 +91,7 @@ func TestFewerGradientsThanGonum(t *testing.T) {
 	if !testing.Short() {
 		for _, m := range robustnessSet() {
 			switch m.name {
-			case "water", "ammonia", "hydrogen cyanide":
-			default:
+			case "benzene", "n-butane":
 				continue
 			}
 			m := m
@@ -94,28 +99,34 @@ func TestFewerGradientsThanGonum(t *testing.T) {
 			cases = append(cases, comparisonCase{"HF/STO-3G " + m.name, m.z, x0, func() gradient.Surface { return scfSurface(t, m.z, x0, "hf", "sto-3g") }})
 		}
 	}
-	crit, _ := Convergence("report")
-	sum := 0.0
-	totalP, totalG := 0, 0
-	for _, c := range cases {
-		res, err := Relax(context.Background(), c.surf(), c.z, c.x0, Options{Criteria: crit})
-		if err != nil {
-			t.Fatalf("%s: poise: %v", c.name, err)
+	for _, level := range []string{"report", "strict"} {
+		crit, _ := Convergence(level)
+		sum := 0.0
+		totalP, totalG := 0, 0
+		for _, c := range cases {
+			full, err := Relax(context.Background(), c.surf(), c.z, c.x0, Options{Criteria: crit})
+			if err != nil {
+				t.Fatalf("%s: poise: %v", c.name, err)
+			}
+			res, err := Relax(context.Background(), c.surf(), c.z, c.x0, Options{Criteria: gradientOnly(crit.MaxGradient)})
+			if err != nil {
+				t.Fatalf("%s: poise: %v", c.name, err)
+			}
+			ng, _, err := gonumBFGS(c.surf(), c.x0, crit.MaxGradient, 2000)
+			if err != nil {
+				t.Fatalf("%s: gonum: %v", c.name, err)
+			}
+			ratio := float64(res.Evaluations) / float64(ng)
+			sum += ratio
+			totalP += res.Evaluations
+			totalG += ng
+			t.Logf("%-28s poise %3d (all criteria %3d)  gonum BFGS %4d  ratio %.2f", c.name, res.Evaluations, full.Evaluations, ng, ratio)
 		}
-		ng, _, err := gonumBFGS(c.surf(), c.x0, crit.MaxGradient, 2000)
-		if err != nil {
-			t.Fatalf("%s: gonum: %v", c.name, err)
+		mean := sum / float64(len(cases))
+		t.Logf("mean ratio %.2f; totals %d / %d", mean, totalP, totalG)
+		if mean > 0.5 {
+			t.Errorf("poise needs %.2f of gonum BFGS's evaluations on average, want at most 0.5", mean)
 		}
-		ratio := float64(res.Evaluations) / float64(ng)
-		sum += ratio
-		totalP += res.Evaluations
-		totalG += ng
-		t.Logf("%-28s poise %3d  gonum BFGS %4d  ratio %.2f", c.name, res.Evaluations, ng, ratio)
-	}
-	mean := sum / float64(len(cases))
-	t.Logf("mean ratio %.2f; totals %d / %d", mean, totalP, totalG)
-	if mean > 0.5 {
-		t.Errorf("poise needs %.2f of gonum BFGS's evaluations on average, want at most 0.5", mean)
 	}
 }
 

@@ -41,7 +41,7 @@ const linearDegrees = 175.0
 // bendDegrees is the angle above which Primitives describes three atoms
 // with linear bends from the start: below linearDegrees, so that a
 // near-linear start does not need a rebuild on its way to linearity.
-var bendDegrees = 160.0
+const bendDegrees = 160.0
 
 // planarDegrees: an atom with three neighbours whose three angles add up to
 // more than this is near-planar and gets an out-of-plane dihedral.
@@ -219,7 +219,7 @@ func Primitives(z []int, xBohr []float64, extra []Coordinate) []Coordinate {
 		a, b, c := nb[j][0], nb[j][1], nb[j][2]
 		sum := angleDegrees(xBohr, a, j, b) + angleDegrees(xBohr, a, j, c) + angleDegrees(xBohr, b, j, c)
 		if sum > planarDegrees {
-			prims = append(prims, Coordinate{Kind: Dihedral, Atoms: [4]int{a, b, c, j}})
+			prims = append(prims, Coordinate{Kind: OutOfPlane, Atoms: [4]int{a, b, c, j}})
 		}
 	}
 	for _, e := range extra {
@@ -287,7 +287,7 @@ func brokenAt(prims []Coordinate, x []float64) bool {
 			if angleDegrees(x, p.Atoms[0], p.Atoms[1], p.Atoms[2]) > linearDegrees {
 				return true
 			}
-		case Dihedral:
+		case Dihedral, OutOfPlane:
 			if angleDegrees(x, p.Atoms[0], p.Atoms[1], p.Atoms[2]) > linearDegrees ||
 				angleDegrees(x, p.Atoms[1], p.Atoms[2], p.Atoms[3]) > linearDegrees {
 				return true

@@ -8,6 +8,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"poise/energy/units"
 	"poise/gradient"
 )
 
@@ -30,7 +31,7 @@ const rejectRiseHartree = 1e-6
 
 // minDistanceBohr: a proposed geometry with two atoms closer than this
 // (0.5 Å) is not evaluated; the trust radius shrinks instead.
-const minDistanceBohr = 0.5 / 0.529177210903
+const minDistanceBohr = 0.5 * units.AngstromBohr
 
 // singularTol: singular values of the Wilson B matrix below this are
 // treated as zero (the redundant directions).
@@ -60,17 +61,7 @@ type Options struct {
 	Cartesian bool
 	// Progress, if set, is called after every evaluated geometry.
 	Progress func(Step)
-
-	tune *tuning
 }
-
-type tuning struct {
-	hess func(p Coordinate) float64
-	trust0, rejectShrink, lowShrink, lowRatio, highRatio, grow, rejectRise float64
-	shrinkOfR                                                              bool
-}
-
-var defaultTuning = tuning{trust0: 0.5, rejectShrink: 0.25, lowShrink: 0.5, lowRatio: 0.25, highRatio: 0.75, grow: 2, rejectRise: 1e-6}
 
 // Step describes one evaluated geometry of a relaxation.
 type Step struct {
@@ -194,9 +185,6 @@ func newRelaxer(s gradient.Surface, z []int, x []float64, opt Options) (*relaxer
 	}
 	if r.trust == 0 {
 		r.trust = DefaultTrustRadius
-		if opt.tune != nil {
-			r.trust = opt.tune.trust0
-		}
 	}
 	if !(r.trust > 0) || r.trust > maxTrustRadius {
 		return nil, fmt.Errorf("optimize: trust radius %g outside (0, %g]", r.trust, maxTrustRadius)
@@ -525,11 +513,6 @@ func (r *relaxer) build(x []float64) bool {
 		}
 	}
 	r.h = modelHessian(r.z, x, r.prims)
-	if r.opt.tune != nil && r.opt.tune.hess != nil {
-		for i, p := range r.prims {
-			r.h[i*len(r.prims)+i] = r.opt.tune.hess(p)
-		}
-	}
 	f, err := r.frame(x)
 	if err != nil {
 		return false
@@ -994,26 +977,18 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 		steps++
 		r.update(x, g, prop.x, g1)
 		dE1 := e1 - energy
-		tu := defaultTuning
-		if r.opt.tune != nil {
-			tu = *r.opt.tune
-		}
-		rejected := dE1 > tu.rejectRise && r.trust > minTrustRadius
+		rejected := dE1 > rejectRiseHartree && r.trust > minTrustRadius
 		switch {
 		case rejected:
-			r.trust = math.Max(minTrustRadius, tu.rejectShrink*math.Min(r.trust, prop.norm))
+			r.trust = math.Max(minTrustRadius, 0.25*math.Min(r.trust, prop.norm))
 		case math.Abs(prop.pred) < 1e-10 && math.Abs(dE1) < 1e-10:
 			// Both changes at the level of numerical noise.
 		default:
 			ratio := dE1 / prop.pred
-			if ratio < tu.lowRatio {
-				if tu.shrinkOfR {
-					r.trust = math.Max(minTrustRadius, tu.lowShrink*r.trust)
-				} else {
-					r.trust = math.Max(minTrustRadius, tu.lowShrink*math.Min(r.trust, prop.norm))
-				}
-			} else if ratio > tu.highRatio && prop.norm > 0.8*r.trust {
-				r.trust = math.Min(maxTrustRadius, tu.grow*r.trust)
+			if ratio < 0.25 {
+				r.trust = math.Max(minTrustRadius, 0.5*math.Min(r.trust, prop.norm))
+			} else if ratio > 0.75 && prop.norm > 0.8*r.trust {
+				r.trust = math.Min(maxTrustRadius, 2*r.trust)
 			}
 		}
 		if rejected {

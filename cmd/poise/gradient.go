@@ -7,12 +7,12 @@ import (
 	"io"
 	"math"
 	"os"
-	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
 	"poise/energy/dft"
+	"poise/energy/dispersion"
 	"poise/energy/scf"
 	"poise/gradient"
 )
@@ -28,6 +28,8 @@ type gradientReport struct {
 	Multiplicity           int          `json:"multiplicity"`
 	Unrestricted           bool         `json:"unrestricted"`
 	EnergyHartree          float64      `json:"energy_hartree"`
+	DispersionHartree      float64      `json:"dispersion_energy_hartree"`
+	LevelOfTheory          string       `json:"level_of_theory"`
 	Converged              bool         `json:"converged"`
 	Iterations             int          `json:"iterations"`
 	GradientHartreePerBohr [][3]float64 `json:"gradient_hartree_per_bohr"`
@@ -91,6 +93,13 @@ func newGradientCmd() *cobra.Command {
 				return err
 			}
 			rep := makeGradientReport(args[0], s, res, g, lf.threads)
+			ed, err := s.dispersionEnergy()
+			if err != nil {
+				return err
+			}
+			rep.DispersionHartree = ed
+			rep.EnergyHartree += ed
+			rep.LevelOfTheory = s.label()
 			rep.Numeric = numeric
 			if numeric {
 				rep.StepBohr = step
@@ -114,6 +123,31 @@ func newGradientCmd() *cobra.Command {
 	return cmd
 }
 
+// surfaceConfig returns the level of theory of s as the configuration of
+// a potential-energy surface (gradient.SCFSurface), with the DFT grid frame
+// of the SCF already run, if any, so that every later geometry uses it.
+func (s *setup) surfaceConfig(numeric bool, step float64) gradient.Config {
+	opts := s.opts
+	opts.XC = nil
+	opts.Guess = nil
+	opts.Progress = nil
+	cfg := gradient.Config{
+		Basis:      s.set,
+		Convention: s.conv,
+		Method:     s.fn,
+		GridLevel:  s.gridLevel,
+		SCF:        opts,
+		Numeric:    numeric,
+		Step:       step,
+		Dispersion: s.dispersion,
+	}
+	if s.grid != nil {
+		fr := s.grid.Frame
+		cfg.Frame = &fr
+	}
+	return cfg
+}
+
 // computeGradient returns the gradient at the converged SCF res.
 func computeGradient(cmd *cobra.Command, s *setup, res *scf.Result, numeric bool, step float64, threads int) ([][3]float64, error) {
 	ctx := cmd.Context()
@@ -124,23 +158,20 @@ func computeGradient(cmd *cobra.Command, s *setup, res *scf.Result, numeric bool
 		if err != nil {
 			return nil, err
 		}
+		if s.dispersion != nil {
+			d, err := dispersion.ForMolecule(s.mol, *s.dispersion, true)
+			if err != nil {
+				return nil, usageErr(err)
+			}
+			for a := range c.Total {
+				for k := 0; k < 3; k++ {
+					c.Total[a][k] += d.Gradient[a][k]
+				}
+			}
+		}
 		return c.Total, nil
 	}
-	opts := s.opts
-	opts.XC = nil
-	opts.Progress = nil
-	cfg := gradient.Config{
-		Basis:      s.set,
-		Convention: s.conv,
-		Method:     s.fn,
-		GridLevel:  s.gridLevel,
-		SCF:        opts,
-		Step:       step,
-	}
-	if s.grid != nil {
-		fr := s.grid.Frame
-		cfg.Frame = &fr
-	}
+	cfg := s.surfaceConfig(false, step)
 	surf, err := gradient.NewSCFSurface(s.mol, cfg)
 	if err != nil {
 		return nil, err
@@ -206,8 +237,8 @@ func printGradientReport(w io.Writer, rep *gradientReport) error {
 	if rep.Numeric {
 		how = fmt.Sprintf("central differences, step %g bohr", rep.StepBohr)
 	}
-	fmt.Fprintf(w, "%s  %s/%s (%s, %s functions)  charge %d  multiplicity %d\n",
-		rep.Formula, strings.ToUpper(rep.Method), rep.Basis, kind, rep.Functions, rep.Charge, rep.Multiplicity)
+	fmt.Fprintf(w, "%s  %s (%s, %s functions)  charge %d  multiplicity %d\n",
+		rep.Formula, rep.LevelOfTheory, kind, rep.Functions, rep.Charge, rep.Multiplicity)
 	fmt.Fprintf(w, "total energy %.10f Eh (SCF converged in %d iterations, %.2f s); %s (%.2f s)\n\n",
 		rep.EnergyHartree, rep.Iterations, rep.SCFSeconds, how, rep.GradientSeconds)
 	rows := make([][]string, len(rep.Symbols))

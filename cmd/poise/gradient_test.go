@@ -125,3 +125,38 @@ func TestGradientExitStatuses(t *testing.T) {
 		})
 	}
 }
+
+// TestGradientWithDispersion checks that --dispersion d3bj enters energy and
+// gradient consistently: the analytic gradient agrees with central
+// differences of the corrected energy (1e-6 Eh/bohr, the HF
+// tolerance), and the reported energy includes the correction.
+func TestGradientWithDispersion(t *testing.T) {
+	get := func(extra ...string) map[string]any {
+		args := append([]string{"gradient", "../../testdata/molecules/water.xyz", "--method", "hf", "--basis", "sto-3g",
+			"--dispersion", "d3bj", "--json", "--threads", "2"}, extra...)
+		out, code, err := runCLI(t, args...)
+		if code != exitOK {
+			t.Fatalf("exit %d: %v", code, err)
+		}
+		var rep map[string]any
+		if err := json.Unmarshal([]byte(out), &rep); err != nil {
+			t.Fatal(err)
+		}
+		return rep
+	}
+	an, num := get(), get("--numeric")
+	if d, _ := an["dispersion_energy_hartree"].(float64); d >= 0 {
+		t.Errorf("dispersion energy %v, want a negative correction", d)
+	}
+	ga := an["gradient_hartree_per_bohr"].([]any)
+	gn := num["gradient_hartree_per_bohr"].([]any)
+	for a := range ga {
+		for k := 0; k < 3; k++ {
+			x := ga[a].([]any)[k].(float64)
+			y := gn[a].([]any)[k].(float64)
+			if math.Abs(x-y) > 1e-6 {
+				t.Errorf("atom %d component %d: analytic %.9f, numeric %.9f", a+1, k, x, y)
+			}
+		}
+	}
+}

@@ -25,6 +25,7 @@ import (
 	_ "gonum.org/v1/plot/vg/vgimg" // registers png
 	_ "gonum.org/v1/plot/vg/vgsvg" // registers svg
 
+	"poise/energy/dispersion"
 	"poise/energy/molecule"
 	"poise/energy/scf"
 	"poise/energy/units"
@@ -196,6 +197,10 @@ func runModes(cmd *cobra.Command, args []string, lf *levelFlags, f *modesFlags) 
 	if err != nil {
 		return usageErr(err)
 	}
+	if sc.Found && file.Level != nil && file.Level.Dispersion != "" {
+		sc.FrequencySource += "; published without dispersion correction"
+		sc.ZPESource += "; published without dispersion correction"
+	}
 	an, err := freq.Analyze(file.System(masses))
 	if err != nil {
 		return fmt.Errorf("%s: %w", source, err)
@@ -248,8 +253,12 @@ func runModes(cmd *cobra.Command, args []string, lf *levelFlags, f *modesFlags) 
 // levelTag names everything besides the geometry and step that the
 // gradients depend on, for the work directory.
 func levelTag(s *setup, conv string) string {
-	return fmt.Sprintf("method=%s basis=%s functions=%s charge=%d multiplicity=%d unrestricted=%v grid=%d scf-gradient=%g",
-		s.method, s.set.Name, conv, s.mol.Charge, s.mol.Multiplicity, s.opts.Unrestricted, s.gridLevel, s.opts.GradientTolerance)
+	disp := "none"
+	if s.dispersion != nil {
+		disp = fmt.Sprintf("d3bj(%+v)", *s.dispersion)
+	}
+	return fmt.Sprintf("method=%s basis=%s functions=%s charge=%d multiplicity=%d unrestricted=%v grid=%d scf-gradient=%g dispersion=%s",
+		s.method, s.set.Name, conv, s.mol.Charge, s.mol.Multiplicity, s.opts.Unrestricted, s.gridLevel, s.opts.GradientTolerance, disp)
 }
 
 // angularFunctions says whether d and higher shells are Cartesian or
@@ -277,9 +286,13 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 	// Displaced gradients converged tighter than single energies: the
 	// differences amplify their noise by 1/2h.
 	s.opts.GradientTolerance = freq.SCFGradientTolerance
-	surf, err := gradient.NewSCFSurface(s.mol, gradient.Config{Basis: s.set, Convention: s.conv, Method: s.fn, GridLevel: s.gridLevel, SCF: s.opts})
+	scfSurf, err := gradient.NewSCFSurface(s.mol, gradient.Config{Basis: s.set, Convention: s.conv, Method: s.fn, GridLevel: s.gridLevel, SCF: s.opts})
 	if err != nil {
 		return nil, nil, usageErr(fmt.Errorf("%s: %w", path, err))
+	}
+	var surf gradient.Surface = scfSurf
+	if s.dispersion != nil {
+		surf = newDispersionSurface(scfSurf, s.mol, *s.dispersion)
 	}
 	work := filepath.Join(outDir, "displacements")
 	x0 := gradient.Coordinates(s.mol)
@@ -337,6 +350,9 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 	}
 	if s.fn.NeedsGrid() {
 		file.Level.GridLevel = s.gridLevel
+	}
+	if s.dispersion != nil {
+		file.Level.Dispersion = "d3bj"
 	}
 	e := h.EnergyHartree
 	file.EnergyHartree = &e
@@ -417,7 +433,7 @@ func printModes(w io.Writer, file *freq.File, an *freq.Analysis, sc freq.Scaling
 	}
 	level := ""
 	if file.Level != nil {
-		level = fmt.Sprintf("  %s/%s", strings.ToUpper(file.Level.Method), file.Level.Basis)
+		level = "  " + levelLabel(file.Level)
 	}
 	formula := file.Formula
 	if formula == "" {
@@ -587,7 +603,7 @@ func plotIRSpectrum(path string, file *freq.File, fwhm float64) error {
 	sticks := plot.New()
 	title := file.Formula
 	if file.Level != nil {
-		title += fmt.Sprintf(", %s/%s", strings.ToUpper(file.Level.Method), file.Level.Basis)
+		title += ", " + levelLabel(file.Level)
 	}
 	if file.MassNote != "" {
 		title += " (" + file.MassNote + ")"
@@ -684,4 +700,54 @@ func (plainTicks) Ticks(lo, hi float64) []plot.Tick {
 		}
 	}
 	return ts
+}
+
+// levelLabel is the level of theory as printed, e.g. "B3LYP-D3(BJ)/6-31G*".
+func levelLabel(l *freq.Level) string {
+	m := strings.ToUpper(l.Method)
+	if l.Dispersion != "" {
+		m += "-D3(BJ)"
+	}
+	return m + "/" + l.Basis
+}
+
+// dispersionSurface adds the D3(BJ) correction (energy and analytic
+// gradient) to a surface's points; the dipole is unchanged.
+type dispersionSurface struct {
+	s gradient.Surface
+	z []int
+	p dispersion.Params
+}
+
+func newDispersionSurface(s gradient.Surface, mol *molecule.Molecule, p dispersion.Params) *dispersionSurface {
+	z := make([]int, len(mol.Atoms))
+	for i, a := range mol.Atoms {
+		z[i] = a.Z
+	}
+	return &dispersionSurface{s: s, z: z, p: p}
+}
+
+func (d *dispersionSurface) NumAtoms() int    { return d.s.NumAtoms() }
+func (d *dispersionSurface) Evaluations() int { return d.s.Evaluations() }
+func (d *dispersionSurface) Evaluate(ctx context.Context, x []float64, req gradient.Request, out *gradient.Point) error {
+	if err := d.s.Evaluate(ctx, x, req, out); err != nil {
+		return err
+	}
+	pos := make([][3]float64, len(d.z))
+	for a := range pos {
+		pos[a] = [3]float64{x[3*a], x[3*a+1], x[3*a+2]}
+	}
+	r, err := dispersion.Compute(d.z, pos, d.p, req.Gradient)
+	if err != nil {
+		return err
+	}
+	out.EnergyHartree += r.EnergyHartree
+	if req.Gradient {
+		for a, g := range r.Gradient {
+			for k := 0; k < 3; k++ {
+				out.Gradient[3*a+k] += g[k]
+			}
+		}
+	}
+	return nil
 }

@@ -135,4 +135,3 @@ func TestGridConvergenceAndRotation(t *testing.T) {
 		t.Errorf("rotated %.9f vs %.9f: %.2e", rot, def, d)
 	}
 }
-

@@ -15,11 +15,15 @@ package integral
 //
 // Shell-pair data (product exponents, centres, the exp(−αβ/ζ·AB²)
 // prefactor) are computed once per pair in NewERI. Primitive pairs whose
-// contribution is negligible are dropped there (see eriPrimThreshold).
-// Shell quartets are reordered internally so that la ≥ lb, lc ≥ ld and the
-// bra pair is the "larger" one; common low angular-momentum classes use
-// straight-line code written by internal/gen (eri_gen.go), all others the
-// table-driven code in eri_generic.go.
+// contribution is negligible are dropped there (eriPrimThreshold), and
+// primitive quartets whose bound is negligible are skipped
+// (eriQuartetThreshold). Shell quartets are reordered internally so that
+// la ≥ lb, lc ≥ ld and the bra pair is the "larger" one; classes with
+// l ≤ 2 on every centre use straight-line code written by internal/gen
+// (eri_gen.go, with the inline Boys function of eri_boys.go), all others
+// the table-driven code in eri_generic.go. The permutation back to the
+// requested order and the Cartesian normalization factors are applied in
+// one pass from precomputed index tables (eriPlans) for l ≤ 2.
 
 //go:generate go run ./internal/gen -o eri_gen.go
 
@@ -86,6 +90,13 @@ type eriShellInfo struct {
 	scale   []float64
 	general bool // trans is a general nfunc×ncart matrix
 	trans   []float64
+	nz      []eriNZ // nonzero entries of trans, by row
+}
+
+// eriNZ is a nonzero entry of a transformation matrix.
+type eriNZ struct {
+	f, c int32 // row (final function) and column (Cartesian component)
+	v    float64
 }
 
 // ERIEngine computes electron-repulsion integrals over the shells of a
@@ -156,6 +167,13 @@ func newERIShellInfo(s *shellData) eriShellInfo {
 		}
 	default:
 		in.general = true
+		for r := 0; r < s.nfunc; r++ {
+			for c := 0; c < s.ncart; c++ {
+				if v := s.trans[r*s.ncart+c]; v != 0 {
+					in.nz = append(in.nz, eriNZ{f: int32(r), c: int32(c), v: v})
+				}
+			}
+		}
 	}
 	return in
 }
@@ -335,6 +353,29 @@ func (e *ERIEngine) Quartet(w *ERIWorkspace, i, j, k, l int) []float64 {
 	if bra.plain && ket.plain && !swBra && !swKet && !swap {
 		return cart[:bra.na*bra.nb*ket.na*ket.nb]
 	}
+	if !bra.general && !ket.general && bra.la <= eriPlanMaxL && ket.la <= eriPlanMaxL {
+		flags := 0
+		if swBra {
+			flags |= 1
+		}
+		if swKet {
+			flags |= 2
+		}
+		if swap {
+			flags |= 4
+		}
+		plan := &eriPlans[eriClass(bra.la, bra.lb, ket.la, ket.lb)*8+flags]
+		dst := w.out[:len(plan.idx)]
+		if &cart[0] == &dst[0] {
+			dst = w.h1[:len(plan.idx)]
+		}
+		src := cart[:len(plan.idx)]
+		sc := plan.scale[:len(plan.idx)]
+		for i, o := range plan.idx {
+			dst[o] = src[i] * sc[i]
+		}
+		return dst
+	}
 	if bra.general || ket.general {
 		// pos[x] is the position (0…3 in the request) of canonical shell x.
 		pos := [4]int{0, 1, 2, 3}
@@ -350,6 +391,82 @@ func (e *ERIEngine) Quartet(w *ERIWorkspace, i, j, k, l int) []float64 {
 		return e.finish(w, cart, [4]int{bra.a, bra.b, ket.a, ket.b}, pos)
 	}
 	return eriScatterPairs(w, cart, bra, ket, swBra, swKet, swap)
+}
+
+// eriPlanMaxL is the highest angular momentum per shell for which the
+// final permutation and scaling of Cartesian shells is tabulated.
+const eriPlanMaxL = 2
+
+// eriPlan maps canonical Cartesian integrals of a class to the requested
+// order: dst[idx[i]] = src[i]·scale[i].
+type eriPlan struct {
+	idx   []int32
+	scale []float64
+}
+
+// eriPlans[eriClass(la,lb,lc,ld)*8 + flags] is the plan for Cartesian
+// shells (and s shells of either kind) with l ≤ eriPlanMaxL; flags bit 0:
+// the request's first pair is stored b-first, bit 1: likewise the second
+// pair, bit 2: the request's first pair is the canonical ket. Read-only
+// after initialization.
+var eriPlans = func() []eriPlan {
+	plans := make([]eriPlan, eriNumClass*8)
+	var scale [eriPlanMaxL + 1][]float64
+	for l := range scale {
+		t := shellTransform(l, false)
+		n := basisNCart(l)
+		scale[l] = make([]float64, n)
+		for i := range scale[l] {
+			scale[l][i] = t[i*n+i]
+		}
+	}
+	for la := 0; la <= eriPlanMaxL; la++ {
+		for lb := 0; lb <= la; lb++ {
+			for lc := 0; lc <= eriPlanMaxL; lc++ {
+				for ld := 0; ld <= lc; ld++ {
+					for flags := 0; flags < 8; flags++ {
+						plans[eriClass(la, lb, lc, ld)*8+flags] = newERIPlan(
+							[4][]float64{scale[la], scale[lb], scale[lc], scale[ld]},
+							flags&1 != 0, flags&2 != 0, flags&4 != 0)
+					}
+				}
+			}
+		}
+	}
+	return plans
+}()
+
+func newERIPlan(sc [4][]float64, swBra, swKet, swap bool) eriPlan {
+	n := [4]int{len(sc[0]), len(sc[1]), len(sc[2]), len(sc[3])}
+	// Request positions of canonical A, B, C, D.
+	pos := [4]int{0, 1, 2, 3}
+	if swBra {
+		pos[0], pos[1] = 1, 0
+	}
+	if swKet {
+		pos[2], pos[3] = 3, 2
+	}
+	if swap {
+		pos = [4]int{pos[2], pos[3], pos[0], pos[1]}
+	}
+	var dims [4]int
+	for x := 0; x < 4; x++ {
+		dims[pos[x]] = n[x]
+	}
+	rs := [4]int{dims[1] * dims[2] * dims[3], dims[2] * dims[3], dims[3], 1}
+	total := n[0] * n[1] * n[2] * n[3]
+	p := eriPlan{idx: make([]int32, 0, total), scale: make([]float64, 0, total)}
+	for a := 0; a < n[0]; a++ {
+		for b := 0; b < n[1]; b++ {
+			for c := 0; c < n[2]; c++ {
+				for d := 0; d < n[3]; d++ {
+					p.idx = append(p.idx, int32(a*rs[pos[0]]+b*rs[pos[1]]+c*rs[pos[2]]+d*rs[pos[3]]))
+					p.scale = append(p.scale, sc[0][a]*sc[1][b]*sc[2][c]*sc[3][d])
+				}
+			}
+		}
+	}
+	return p
 }
 
 // eriScatterPairs applies the diagonal factors of Cartesian shells and the
@@ -419,7 +536,7 @@ func eriClass(la, lb, lc, ld int) int {
 }
 
 // eriGenFunc computes a canonical quartet of one class with straight-line
-// code and returns the Cartesian integrals (in w.out or w.h1).
+// code and returns the Cartesian integrals (in w.out).
 type eriGenFunc func(w *ERIWorkspace, bra, ket *eriPair) []float64
 
 // finish maps canonical Cartesian integrals over shells sh (A, B, C, D) to
@@ -453,7 +570,7 @@ func (e *ERIEngine) finish(w *ERIWorkspace, cart []float64, sh, pos [4]int) []fl
 				post *= n[y]
 			}
 			dst := buf[bi]
-			eriTransformAxis(dst, src, pre, in[x].ncart, in[x].nfunc, post, in[x].trans)
+			eriTransformSparse(dst, src, pre, in[x].ncart, in[x].nfunc, post, in[x].nz)
 			n[x] = in[x].nfunc
 			src = dst
 			bi ^= 1
@@ -590,6 +707,36 @@ var eriOnes = func() []float64 {
 	}
 	return v
 }()
+
+// eriTransformSparse applies the nf×nc matrix with nonzero entries nz to
+// the middle index of src viewed as [pre][nc][post], writing dst as
+// [pre][nf][post].
+func eriTransformSparse(dst, src []float64, pre, nc, nf, post int, nz []eriNZ) {
+	if post == 1 {
+		for p := 0; p < pre; p++ {
+			d := dst[p*nf : (p+1)*nf]
+			s := src[p*nc : (p+1)*nc]
+			clear(d)
+			for _, z := range nz {
+				d[z.f] += z.v * s[z.c]
+			}
+		}
+		return
+	}
+	for p := 0; p < pre; p++ {
+		d := dst[p*nf*post : (p+1)*nf*post]
+		s := src[p*nc*post : (p+1)*nc*post]
+		clear(d)
+		for _, z := range nz {
+			dd := d[int(z.f)*post : int(z.f+1)*post]
+			ss := s[int(z.c)*post : int(z.c+1)*post]
+			ss = ss[:len(dd)]
+			for q := range dd {
+				dd[q] += z.v * ss[q]
+			}
+		}
+	}
+}
 
 // eriTransformAxis applies the nf×nc matrix m to the middle index of src
 // viewed as [pre][nc][post], writing dst as [pre][nf][post].

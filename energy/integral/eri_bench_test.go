@@ -11,11 +11,18 @@ import (
 // convention) of benzene from testdata/molecules/benzene.xyz.
 func eriBenzeneShells(tb testing.TB) []basis.Shell {
 	tb.Helper()
+	return eriBenzeneShellsIn(tb, "6-31G*")
+}
+
+// eriBenzeneShellsIn returns the shells of benzene in the named basis set
+// with the set's own convention.
+func eriBenzeneShellsIn(tb testing.TB, name string) []basis.Shell {
+	tb.Helper()
 	mol, err := molecule.ReadXYZFile("../../testdata/molecules/benzene.xyz")
 	if err != nil {
 		tb.Fatal(err)
 	}
-	set, err := basis.Load("6-31G*")
+	set, err := basis.Load(name)
 	if err != nil {
 		tb.Fatal(err)
 	}

@@ -15,9 +15,10 @@ import "math"
 //
 // starting from [0|0]⁽ᵐ⁾ = 2π^{5/2}/(ζη√(ζ+η)) K_AB K_CD F_m(T). The bra
 // recursion first builds [e|0]⁽ᵐ⁾ for |e| ≤ la+lb; the ket recursion then
-// raises f one level at a time. Level k of f stores [e|f]⁽ᵐ⁾ for all e
-// (cumulative index), the components f of level k and m = 0 … lc+ld−k
-// (level 0: m = 0 … L), m fastest.
+// raises f one level at a time. Level k of f stores [e|f]⁽ᵐ⁾ for
+// m = 0 … lc+ld−k (level 0: m = 0 … L), the components f of level k and all
+// e (cumulative index), e fastest, so that the ket recursion runs long
+// inner loops over e.
 
 // eriVRRSize is the number of values the generic vertical recursion stores
 // for Lab = la+lb, Lcd = lc+ld.
@@ -107,27 +108,23 @@ func (e *ERIEngine) generic(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			// Level 0, e = s.
 			for m := 0; m <= L; m++ {
-				V[m] = F[m] * pref
+				V[m*neAll] = F[m] * pref
 			}
 			eriVRRBra(V, lab, L, &c)
 			for k := 1; k <= lcd; k++ {
 				eLo := max(0, la-(lcd-k))
-				eriVRRKet(V, off[:], k, eLo, neAll, lcd, L, &c)
+				eriVRRKet(V, off[:], k, eLo, lab, lcd, &c)
 			}
 			// Contract [e|f]⁽⁰⁾ with la ≤ |e|, lc ≤ |f|.
 			e0 := eriCum(la)
 			for k := lc; k <= lcd; k++ {
 				nfk := basisNCart(k)
-				nmk := lcd - k + 1
-				if k == 0 {
-					nmk = L + 1
-				}
 				fRel := eriCum(k) - eriCum(lc)
-				lv := V[off[k]:]
-				for n := e0; n < neAll; n++ {
-					a := acc[(n-e0)*nf+fRel : (n-e0)*nf+fRel+nfk]
-					for fc := range a {
-						a[fc] += lv[(n*nfk+fc)*nmk]
+				for fc := 0; fc < nfk; fc++ {
+					src := V[off[k]+fc*neAll+e0 : off[k]+(fc+1)*neAll]
+					a := acc[fRel+fc:]
+					for n, x := range src {
+						a[n*nf] += x
 					}
 				}
 			}
@@ -144,56 +141,49 @@ type vrrCoef struct {
 	oo2z, oo2e, rz, re, oo2zn float64
 }
 
-// eriVRRBra builds [e|0]⁽ᵐ⁾ for 1 ≤ |e| ≤ lab, m ≤ L−|e|, from [0|0]⁽ᵐ⁾.
+// eriVRRBra builds [e|0]⁽ᵐ⁾ for 1 ≤ |e| ≤ lab, m ≤ L−|e|, from [0|0]⁽ᵐ⁾
+// (stored at V[m·ne + e] with ne = eriCum(lab+1)).
 func eriVRRBra(V []float64, lab, L int, c *vrrCoef) {
-	nm := L + 1
-	for n := 1; n < eriCum(lab+1); n++ {
+	ne := eriCum(lab + 1)
+	for n := 1; n < ne; n++ {
 		t := &eriCartTab[n]
 		i := t.dir
 		mmax := L - int(t.level)
-		dst := V[n*nm : n*nm+mmax+1]
 		n1 := int(t.minus[i])
-		s1 := V[n1*nm : n1*nm+mmax+2]
 		pa, wp := c.pa[i], c.wp[i]
-		for m := range dst {
-			dst[m] = pa*s1[m] + wp*s1[m+1]
-		}
 		if k := t.n[i] - 1; k > 0 {
 			n2 := int(eriCartTab[n1].minus[i])
-			s2 := V[n2*nm : n2*nm+mmax+2]
 			c1 := float64(k) * c.oo2z
 			c2 := c1 * c.rz
-			for m := range dst {
-				dst[m] += c1*s2[m] - c2*s2[m+1]
+			for m := 0; m <= mmax; m++ {
+				o := m * ne
+				V[o+n] = pa*V[o+n1] + wp*V[o+ne+n1] + c1*V[o+n2] - c2*V[o+ne+n2]
 			}
+			continue
+		}
+		for m := 0; m <= mmax; m++ {
+			o := m * ne
+			V[o+n] = pa*V[o+n1] + wp*V[o+ne+n1]
 		}
 	}
 }
 
-// eriVRRKet builds ket level k ([e|f]⁽ᵐ⁾ with |f| = k, |e| ≥ eLo,
+// eriVRRKet builds ket level k ([e|f]⁽ᵐ⁾ with |f| = k, eLo ≤ |e| ≤ lab,
 // m ≤ lcd−k) from levels k−1 and k−2.
-func eriVRRKet(V []float64, off []int, k, eLo, neAll, lcd, L int, c *vrrCoef) {
+func eriVRRKet(V []float64, off []int, k, eLo, lab, lcd int, c *vrrCoef) {
+	ne := eriCum(lab + 1)
+	n0 := eriCum(eLo)
 	nfk := basisNCart(k)
 	nmk := lcd - k + 1
 	nf1 := basisNCart(k - 1)
-	nm1 := lcd - k + 2
-	if k == 1 {
-		nm1 = L + 1
-	}
-	nf2, nm2 := 0, 0
+	nf2 := 0
+	var l2 []float64
 	if k >= 2 {
 		nf2 = basisNCart(k - 2)
-		nm2 = lcd - k + 3
-		if k == 2 {
-			nm2 = L + 1
-		}
+		l2 = V[off[k-2]:off[k-1]]
 	}
 	dstL := V[off[k]:off[k+1]]
 	l1 := V[off[k-1]:off[k]]
-	var l2 []float64
-	if k >= 2 {
-		l2 = V[off[k-2]:off[k-1]]
-	}
 	c0, c1 := eriCum(k), eriCum(k-1)
 	for fc := 0; fc < nfk; fc++ {
 		t := &eriCartTab[c0+fc]
@@ -207,29 +197,53 @@ func eriVRRKet(V []float64, off []int, k, eLo, neAll, lcd, L int, c *vrrCoef) {
 		qc, wq := c.qc[i], c.wq[i]
 		a1 := float64(kf) * c.oo2e
 		a2 := a1 * c.re
-		for n := eriCum(eLo); n < neAll; n++ {
-			dst := dstL[(n*nfk+fc)*nmk : (n*nfk+fc+1)*nmk]
-			s1 := l1[(n*nf1+f1)*nm1 : (n*nf1+f1)*nm1+nmk+1]
-			for m := range dst {
-				dst[m] = qc*s1[m] + wq*s1[m+1]
-			}
+		// Coupling to the bra, e_i/(2(ζ+η))·[e−1ᵢ|f−1ᵢ]⁽ᵐ⁺¹⁾, through dense
+		// tables (factor 0 where e_i = 0).
+		ce := eriAxisE[i][n0:ne]
+		cm := eriAxisM[i][n0:ne]
+		b := c.oo2zn
+		for m := 0; m < nmk; m++ {
+			d := dstL[(m*nfk+fc)*ne+n0 : (m*nfk+fc+1)*ne]
+			s1 := l1[(m*nf1+f1)*ne+n0 : (m*nf1+f1+1)*ne]
+			s1p := l1[((m+1)*nf1+f1)*ne : ((m+1)*nf1+f1+1)*ne]
+			s1q := s1p[n0:]
+			s1 = s1[:len(d)]
+			s1q = s1q[:len(d)]
+			e, mi := ce[:len(d)], cm[:len(d)]
 			if f2 >= 0 {
-				s2 := l2[(n*nf2+f2)*nm2 : (n*nf2+f2)*nm2+nmk+1]
-				for m := range dst {
-					dst[m] += a1*s2[m] - a2*s2[m+1]
+				s2 := l2[(m*nf2+f2)*ne+n0 : (m*nf2+f2+1)*ne]
+				s2p := l2[((m+1)*nf2+f2)*ne+n0 : ((m+1)*nf2+f2+1)*ne]
+				s2 = s2[:len(d)]
+				s2p = s2p[:len(d)]
+				for n := range d {
+					d[n] = qc*s1[n] + wq*s1q[n] + a1*s2[n] - a2*s2p[n] + b*e[n]*s1p[mi[n]]
 				}
-			}
-			if ei := eriCartTab[n].n[i]; ei > 0 {
-				ne := int(eriCartTab[n].minus[i])
-				s3 := l1[(ne*nf1+f1)*nm1 : (ne*nf1+f1)*nm1+nmk+1]
-				b := float64(ei) * c.oo2zn
-				for m := range dst {
-					dst[m] += b * s3[m+1]
+			} else {
+				for n := range d {
+					d[n] = qc*s1[n] + wq*s1q[n] + b*e[n]*s1p[mi[n]]
 				}
 			}
 		}
 	}
 }
+
+// eriAxisE[i][n] is the exponent along axis i of component n (cumulative
+// index) and eriAxisM[i][n] the index of the component with that exponent
+// lowered by one (0 where the exponent is 0, the factor then being 0).
+// Read-only after initialization.
+var eriAxisE, eriAxisM = func() (e [3][]float64, m [3][]int32) {
+	for i := 0; i < 3; i++ {
+		e[i] = make([]float64, len(eriCartTab))
+		m[i] = make([]int32, len(eriCartTab))
+		for n := range eriCartTab {
+			if t := &eriCartTab[n]; t.n[i] > 0 {
+				e[i][n] = float64(t.n[i])
+				m[i][n] = t.minus[i]
+			}
+		}
+	}
+	return
+}()
 
 // eriHRRBra applies (a,b+1ᵢ| = (a+1ᵢ,b| + (A−B)ᵢ(a,b| to the contracted
 // [e|f] (|e| = la … la+lb, nf ket components) and returns (ab|f) as

@@ -27,10 +27,16 @@ func eriThreadCPU() time.Duration {
 // (libintref.ERIAllUnique, engine set-up included), alternating which goes
 // first. It reports seconds per sweep for each (wall clock and thread CPU
 // time) and the ratios poise/libint2.
-func BenchmarkERIBenzene631Gs(b *testing.B) {
+func BenchmarkERIBenzene631Gs(b *testing.B) { eriBenchVsLibint(b, "6-31G*") }
+
+// BenchmarkERIBenzeneCCPVDZ is the same comparison for cc-pVDZ, with
+// spherical d shells and general contractions split into segmented shells.
+func BenchmarkERIBenzeneCCPVDZ(b *testing.B) { eriBenchVsLibint(b, "cc-pVDZ") }
+
+func eriBenchVsLibint(b *testing.B, basisName string) {
 	runtime.LockOSThread()
 	defer runtime.UnlockOSThread()
-	shells := eriBenzeneShells(b)
+	shells := eriBenzeneShellsIn(b, basisName)
 	ls := make([]libintref.Shell, len(shells))
 	for i, s := range shells {
 		ls[i] = eriToLibint(s)

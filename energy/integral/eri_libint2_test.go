@@ -10,6 +10,7 @@ import (
 
 	"poise/energy/basis"
 	"poise/energy/integral/libintref"
+	"poise/energy/molecule"
 )
 
 func eriToLibint(s basis.Shell) libintref.Shell {
@@ -126,5 +127,40 @@ func TestERIAgainstLibint2Benzene(t *testing.T) {
 	}
 	if math.Abs(sum-wsum) > 1e-10*math.Abs(wsum) {
 		t.Errorf("sum of unique integrals %.15g, libint2 %.15g", sum, wsum)
+	}
+}
+
+// TestERIAgainstLibint2Molecules samples quartets of molecules whose basis
+// sets stretch the exponent range: HBr in 6-31G* (Br core s exponents near
+// 1e5, Cartesian d) and HF in aug-cc-pVTZ (spherical d and f, diffuse
+// functions down to about 0.02 bohr⁻²).
+func TestERIAgainstLibint2Molecules(t *testing.T) {
+	cases := []struct{ xyz, basis string }{
+		{"2\nHBr\nH 0 0 0\nBr 0 0 1.414\n", "6-31G*"},
+		{"2\nHF\nH 0 0 0\nF 0 0 0.917\n", "aug-cc-pVTZ"},
+	}
+	rng := rand.New(rand.NewPCG(35, 1))
+	for _, c := range cases {
+		mol, err := molecule.ParseXYZ("test.xyz", []byte(c.xyz))
+		if err != nil {
+			t.Fatal(err)
+		}
+		set, err := basis.Load(c.basis)
+		if err != nil {
+			t.Fatal(err)
+		}
+		shells, err := set.Shells(mol, basis.Default)
+		if err != nil {
+			t.Fatal(err)
+		}
+		e := NewERI(NewBasis(shells))
+		w := e.NewWorkspace()
+		n := len(shells)
+		for trial := 0; trial < 300; trial++ {
+			i, j, k, l := rng.IntN(n), rng.IntN(n), rng.IntN(n), rng.IntN(n)
+			got := e.Quartet(w, i, j, k, l)
+			want := libintref.ERI(eriToLibint(shells[i]), eriToLibint(shells[j]), eriToLibint(shells[k]), eriToLibint(shells[l]))
+			eriCompare(t, fmt.Sprintf("%s/%s (%d %d|%d %d)", mol.Formula(), c.basis, i, j, k, l), got, want)
+		}
 	}
 }

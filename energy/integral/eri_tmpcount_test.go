@@ -1,6 +1,10 @@
+//go:build eritmp
+
 package integral
 
 import (
+	"poise/energy/basis"
+	"poise/energy/molecule"
 	"runtime"
 	"sort"
 	"syscall"
@@ -35,4 +39,15 @@ func TestTmpOnce(t *testing.T) {
 	w := e.NewWorkspace()
 	_, sum := eriAllUnique(e, w)
 	t.Logf("checksum %.12f", sum)
+}
+
+func BenchmarkTmpWaterQZ(b *testing.B) {
+	mol, _ := molecule.ReadXYZFile("../../testdata/molecules/water.xyz")
+	set, _ := basis.Load("cc-pVQZ")
+	shells, _ := set.Shells(mol, basis.Default)
+	e := NewERI(NewBasis(shells))
+	w := e.NewWorkspace()
+	for b.Loop() {
+		eriAllUnique(e, w)
+	}
 }

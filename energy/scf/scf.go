@@ -238,10 +238,10 @@ func Run(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell, opt 
 		}
 		prevE = e
 		// Stall detection: no tenfold improvement of the orbital gradient in
-		// 12 iterations switches on a level shift and restarts DIIS.
+		// 8 iterations switches on a level shift and restarts DIIS.
 		if maxErr < bestErr/10 || it == 1 {
 			bestErr, bestAt = maxErr, it
-		} else if !shift && it-bestAt >= 12 {
+		} else if !shift && it-bestAt >= 8 {
 			shift = true
 			acc.reset()
 			bestErr, bestAt = maxErr, it
