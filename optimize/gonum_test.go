@@ -69,67 +69,6 @@ func gradientOnly(maxGradient float64) Criteria {
 	return Criteria{MaxGradient: maxGradient, RMSGradient: 1, MaxStep: 1, RMSStep: 1, EnergyChange: 1}
 }
 
-// comparisonCase is one surface and start for the comparison.
-type comparisonCase struct {
-	name string
-	z    []int
-	x0   []float64
-	surf func() gradient.Surface
-}
-
-// TestFewerGradientsThanGonum relaxes the model surfaces and three small
-// molecules at HF/STO-3G from distorted starts at the "report" level, and
-// gonum's general-purpose BFGS in Cartesian coordinates from the same starts
-// to the same largest gradient. poise must need at most half the
-// evaluations on average.
-func TestFewerGradientsThanGonum(t *testing.T) {
-	var cases []comparisonCase
-	for _, mc := range modelCases() {
-		mc := mc
-		cases = append(cases, comparisonCase{"model " + mc.name, mc.z, distort(mc.z, mc.ref, 0.2, 15), func() gradient.Surface { return mc.surf() }})
-	}
-	if !testing.Short() {
-		for _, m := range robustnessSet() {
-			switch m.name {
-			case "benzene", "n-butane":
-				continue
-			}
-			m := m
-			x0 := distort(m.z, m.x, 0.2, 15)
-			cases = append(cases, comparisonCase{"HF/STO-3G " + m.name, m.z, x0, func() gradient.Surface { return scfSurface(t, m.z, x0, "hf", "sto-3g") }})
-		}
-	}
-	for _, level := range []string{"report", "strict"} {
-		crit, _ := Convergence(level)
-		sum := 0.0
-		totalP, totalG := 0, 0
-		for _, c := range cases {
-			full, err := Relax(context.Background(), c.surf(), c.z, c.x0, Options{Criteria: crit})
-			if err != nil {
-				t.Fatalf("%s: poise: %v", c.name, err)
-			}
-			res, err := Relax(context.Background(), c.surf(), c.z, c.x0, Options{Criteria: gradientOnly(crit.MaxGradient)})
-			if err != nil {
-				t.Fatalf("%s: poise: %v", c.name, err)
-			}
-			ng, _, err := gonumBFGS(c.surf(), c.x0, crit.MaxGradient, 2000)
-			if err != nil {
-				t.Fatalf("%s: gonum: %v", c.name, err)
-			}
-			ratio := float64(res.Evaluations) / float64(ng)
-			sum += ratio
-			totalP += res.Evaluations
-			totalG += ng
-			t.Logf("%-28s poise %3d (all criteria %3d)  gonum BFGS %4d  ratio %.2f", c.name, res.Evaluations, full.Evaluations, ng, ratio)
-		}
-		mean := sum / float64(len(cases))
-		t.Logf("mean ratio %.2f; totals %d / %d", mean, totalP, totalG)
-		if mean > 0.5 {
-			t.Errorf("poise needs %.2f of gonum BFGS's evaluations on average, want at most 0.5", mean)
-		}
-	}
-}
-
 // BenchmarkRobustnessSet relaxes each molecule of the robustness set at
 // HF/STO-3G from its distorted start ("report" level) and reports the
 // surface evaluations per relaxation; ns/op is the wall time of one

@@ -74,10 +74,12 @@ type Step struct {
 	// MaxGradient and RMSGradient are the largest and RMS component of the
 	// gradient as the criteria measure it (Eh/bohr).
 	MaxGradient, RMSGradient float64
-	// MaxStep and RMSStep measure the step that led here (bohr; at the
-	// start, the step about to be taken).
+	// MaxStep and RMSStep measure the next step, the Cartesian
+	// displacement to the minimum of the quadratic model within the trust
+	// radius, as the criteria do (bohr; zero for a rejected step).
 	MaxStep, RMSStep float64
-	// StepLength is the Euclidean length of the Cartesian step (bohr).
+	// StepLength is the Euclidean length of the Cartesian step that led
+	// here (bohr; zero at the start).
 	StepLength float64
 	// TrustRadius is the trust radius after this step.
 	TrustRadius float64
@@ -942,11 +944,12 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 			return res, fmt.Errorf("optimize: step %d: %w", steps+1, err)
 		}
 		maxG, rmsG := r.gradientStats(x, g)
-		var maxS, rmsS, lenS, dE float64
+		// Step criteria on the next step (the displacement to the minimum
+		// of the model), the energy criterion on the last step taken.
+		maxS, rmsS := maxAbs(prop.dx), rms(prop.dx)
+		dE, lenS := prop.pred, 0.0
 		if haveLast {
-			maxS, rmsS, lenS, dE = maxAbs(lastDX), rms(lastDX), vnorm(lastDX), lastDE
-		} else {
-			maxS, rmsS, lenS, dE = maxAbs(prop.dx), rms(prop.dx), vnorm(prop.dx), prop.pred
+			dE, lenS = lastDE, vnorm(lastDX)
 		}
 		conv := r.crit.met(maxG, rmsG, maxS, rmsS, dE)
 		if r.opt.Progress != nil && !quiet {
@@ -995,7 +998,7 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 			if r.opt.Progress != nil {
 				mg, rg := r.gradientStats(prop.x, g1)
 				r.opt.Progress(Step{Number: steps, EnergyHartree: e1, ChangeHartree: dE1, MaxGradient: mg, RMSGradient: rg,
-					MaxStep: maxAbs(prop.dx), RMSStep: rms(prop.dx), StepLength: vnorm(prop.dx), TrustRadius: r.trust,
+					StepLength: vnorm(prop.dx), TrustRadius: r.trust,
 					Rejected: true, Coordinates: r.coordsName(), Evaluations: r.s.Evaluations() - start, XBohr: prop.x})
 			}
 			quiet = true

@@ -25,7 +25,6 @@ import (
 	_ "gonum.org/v1/plot/vg/vgimg" // registers png
 	_ "gonum.org/v1/plot/vg/vgsvg" // registers svg
 
-	"poise/energy/dispersion"
 	"poise/energy/molecule"
 	"poise/energy/scf"
 	"poise/energy/units"
@@ -286,13 +285,10 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 	// Displaced gradients converged tighter than single energies: the
 	// differences amplify their noise by 1/2h.
 	s.opts.GradientTolerance = freq.SCFGradientTolerance
-	scfSurf, err := gradient.NewSCFSurface(s.mol, gradient.Config{Basis: s.set, Convention: s.conv, Method: s.fn, GridLevel: s.gridLevel, SCF: s.opts})
+	surf, err := gradient.NewSCFSurface(s.mol, gradient.Config{Basis: s.set, Convention: s.conv, Method: s.fn,
+		GridLevel: s.gridLevel, SCF: s.opts, Dispersion: s.dispersion})
 	if err != nil {
 		return nil, nil, usageErr(fmt.Errorf("%s: %w", path, err))
-	}
-	var surf gradient.Surface = scfSurf
-	if s.dispersion != nil {
-		surf = newDispersionSurface(scfSurf, s.mol, *s.dispersion)
 	}
 	work := filepath.Join(outDir, "displacements")
 	x0 := gradient.Coordinates(s.mol)
@@ -709,45 +705,4 @@ func levelLabel(l *freq.Level) string {
 		m += "-D3(BJ)"
 	}
 	return m + "/" + l.Basis
-}
-
-// dispersionSurface adds the D3(BJ) correction (energy and analytic
-// gradient) to a surface's points; the dipole is unchanged.
-type dispersionSurface struct {
-	s gradient.Surface
-	z []int
-	p dispersion.Params
-}
-
-func newDispersionSurface(s gradient.Surface, mol *molecule.Molecule, p dispersion.Params) *dispersionSurface {
-	z := make([]int, len(mol.Atoms))
-	for i, a := range mol.Atoms {
-		z[i] = a.Z
-	}
-	return &dispersionSurface{s: s, z: z, p: p}
-}
-
-func (d *dispersionSurface) NumAtoms() int    { return d.s.NumAtoms() }
-func (d *dispersionSurface) Evaluations() int { return d.s.Evaluations() }
-func (d *dispersionSurface) Evaluate(ctx context.Context, x []float64, req gradient.Request, out *gradient.Point) error {
-	if err := d.s.Evaluate(ctx, x, req, out); err != nil {
-		return err
-	}
-	pos := make([][3]float64, len(d.z))
-	for a := range pos {
-		pos[a] = [3]float64{x[3*a], x[3*a+1], x[3*a+2]}
-	}
-	r, err := dispersion.Compute(d.z, pos, d.p, req.Gradient)
-	if err != nil {
-		return err
-	}
-	out.EnergyHartree += r.EnergyHartree
-	if req.Gradient {
-		for a, g := range r.Gradient {
-			for k := 0; k < 3; k++ {
-				out.Gradient[3*a+k] += g[k]
-			}
-		}
-	}
-	return nil
 }

@@ -34,14 +34,17 @@ import (
 	"sync"
 )
 
-// eriPrimThreshold drops a primitive pair (α on A, β on B) when the bound
+// eriPrimThreshold drops a primitive pair (α on A, β on B) when its charge
+// bound
 //
-//	|c_α c_β| (π/ζ)^{3/2} exp(−αβ/ζ·|AB|²) (|PA|+ζ^{−1/2})^la (|PB|+ζ^{−1/2})^lb
+//	Q = |c_α c_β| exp(−αβ/ζ·|AB|²) (π/ζ)^{3/2} g_L (max(|PA|,|PB|)+ζ^{−1/2})^L
 //
-// (an upper bound of the magnitude of its charge distribution, with c the
-// coefficients of unnormalized primitives and ζ = α+β) is below it. The
-// primitive product then changes no integral by more than about this
-// threshold times the largest Coulomb potential of a normalized
+// is below it, with c the coefficients of unnormalized primitives,
+// ζ = α+β, L = la+lb and g_L = Γ((L+3)/2)/Γ(3/2). Q bounds ∫|χ_α χ_β| d³r:
+// every Cartesian factor |x_A| is at most |r_P|+|PA|, and
+// ∫(|r|+c)^L e^{−ζr²} d³r = Σ_k C(L,k) c^{L−k} (π/ζ)^{3/2} g_k ζ^{−k/2}
+// with g_k ≤ g_L. The pair then changes no integral by more than about
+// this threshold times the largest Coulomb potential of a normalized
 // distribution, well below the 1e-12 accuracy aimed at (common practice:
 // drop primitive products below ~1e-15).
 const eriPrimThreshold = 1e-15
@@ -53,7 +56,7 @@ type eriPrim struct {
 	p    [3]float64 // P = (αA+βB)/ζ
 	pa   [3]float64 // P − A
 	k    float64    // c_α c_β exp(−αβ/ζ·AB²)/ζ · √2 π^{5/4}
-	// bnd = Q·(2/π)^{1/4}ζ^{1/4} with Q the charge bound of
+	// bnd = Q·(4/π)^{1/4}ζ^{1/4} with Q the charge bound of
 	// eriPrimThreshold: bnd_p·bnd_q bounds the primitive quartet's
 	// contribution to any integral (see newERIPair).
 	bnd float64
@@ -209,19 +212,24 @@ func newERIPair(b *Basis, i, j int) eriPair {
 				d := pr.p[k] - sb.center[k]
 				dpb += d * d
 			}
-			s := 1 / math.Sqrt(z)
-			bound := math.Abs(c) * math.Pow(math.Pi/z, 1.5) * kab *
-				math.Pow(math.Sqrt(dpa)+s, float64(p.la)) * math.Pow(math.Sqrt(dpb)+s, float64(p.lb))
+			L := float64(p.la + p.lb)
+			gL := math.Gamma((L+3)/2) / math.Gamma(1.5)
+			bound := math.Abs(c) * kab * math.Pow(math.Pi/z, 1.5) * gL *
+				math.Pow(math.Sqrt(math.Max(dpa, dpb))+1/math.Sqrt(z), L)
 			if bound < eriPrimThreshold {
 				continue
 			}
 			pr.k = c * kab / z * pre
-			// The Coulomb interaction of two charge distributions bounded
-			// by Q_p and Q_q with exponents ζ and η is at most
-			// Q_p Q_q·2√(ρ/π) (the potential of the tighter Gaussian at its
-			// centre), and 2√(ρ/π) ≤ (2/π)^{1/2}(ζη)^{1/4} since
-			// ρ = ζη/(ζ+η) ≤ √(ζη)/2; so bnd_p·bnd_q bounds the quartet.
-			pr.bnd = bound * math.Pow(2/math.Pi, 0.25) * math.Pow(z, 0.25)
+			// The Coulomb interaction of two charge distributions with
+			// charges Q_p, Q_q and exponents ζ, η is taken to be at most
+			// Q_p Q_q·2√(min(ζ,η)/π): each charge times the peak potential
+			// 2√(ζ/π) (or 2√(η/π)) per unit charge of the other Gaussian,
+			// whichever is smaller (a bound for s functions, where
+			// (ss|ss) = Q_p Q_q·2√(ρ/π)F₀(T) with ρ ≤ min(ζ,η); polynomial
+			// factors only spread the charge).
+			// Since min(ζ,η) ≤ √(ζη), bnd = Q·(4/π)^{1/4} ζ^{1/4} gives
+			// bnd_p·bnd_q = Q_p Q_q (2/√π)(ζη)^{1/4} ≥ that bound.
+			pr.bnd = bound * math.Pow(4/math.Pi, 0.25) * math.Pow(z, 0.25)
 			p.prims = append(p.prims, pr)
 		}
 	}
@@ -340,8 +348,9 @@ func (e *ERIEngine) NewWorkspace() *ERIWorkspace {
 func basisNCart(l int) int { return (l + 1) * (l + 2) / 2 }
 
 // Quartet returns the integrals (ab|cd) for a in shell i, b in j, c in k,
-// d in l over the final basis functions, row-major [a][b][c][d]. The slice
-// belongs to w and is valid until the next call with w.
+// d in l over the final basis functions, row-major [a][b][c][d]. The shells
+// may come in any order. The slice belongs to w and is valid until the next
+// call with w.
 func (e *ERIEngine) Quartet(w *ERIWorkspace, i, j, k, l int) []float64 {
 	bra, ket := e.pair(i, j), e.pair(k, l)
 	swBra, swKet := bra.a != i, ket.a != k // pair stored in the other order
