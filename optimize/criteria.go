@@ -9,15 +9,18 @@ import (
 // converged when all five hold at once. Gradients are of the energy with
 // respect to the Cartesian coordinates of the atoms that may move, with
 // the components along rigid translations and rotations and along held
-// coordinates removed; steps are Cartesian displacements of the step that
-// led to the geometry (for the starting geometry, the step that would be
-// taken next, and the energy change it predicts).
+// coordinates removed. Steps are Cartesian displacements, and both the
+// last step and the next one must be small: the next step is the way to
+// the minimum of the quadratic model (within the trust radius), so a small
+// one says the geometry is close to the minimum, not just that it stopped
+// moving. The energy change is that of the last step taken (for the
+// starting geometry, the one the model predicts).
 type Criteria struct {
 	MaxGradient  float64 // largest gradient component, Eh/bohr
 	RMSGradient  float64 // root-mean-square gradient component, Eh/bohr
 	MaxStep      float64 // largest displacement component, bohr
 	RMSStep      float64 // root-mean-square displacement component, bohr
-	EnergyChange float64 // |energy change| of the step, Eh
+	EnergyChange float64 // |energy change| of the last step, Eh
 }
 
 // Named convergence levels (see the package documentation for their

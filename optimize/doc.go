@@ -53,8 +53,10 @@
 // A geometry is converged when all five criteria hold: the largest and RMS
 // component of the Cartesian gradient of the atoms that may move (rigid
 // translations and rotations and held coordinates projected out), the
-// largest and RMS Cartesian displacement of the step that led to it, and
-// the energy change of that step. The named levels (Convergence):
+// largest and RMS Cartesian displacement of both the last step and the next
+// one (the way to the minimum of the quadratic model, an estimate of the
+// remaining error), and the energy change of the last step. The named
+// levels (Convergence):
 //
 //	level    max gradient  RMS gradient  max step   RMS step   energy change
 //	         Eh/bohr       Eh/bohr       bohr       bohr       Eh
@@ -63,9 +65,9 @@
 //	strict   1.0e-5        7.0e-6        4.0e-5     3.0e-5     1e-8
 //
 // draft is a quick pre-relaxation (bonds within about 0.01 Å, to be
-// refined); report (the default) gives a structure to publish: no atom
-// moved by more than 0.001 Å in the last step, bonds typically within
-// 0.0005 Å and angles within 0.1° of the minimum; strict is for a frequency
+// refined); report (the default) gives a structure to publish: the model
+// puts no atom coordinate more than 0.001 Å from the minimum; strict is for
+// a frequency
 // calculation, where a residual gradient shifts the low modes: the largest
 // gradient is 1e-5 Eh/bohr, and on the model surfaces of the tests the
 // geometry is within 1e-5 Å of the exact minimum.

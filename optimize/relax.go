@@ -74,9 +74,10 @@ type Step struct {
 	// MaxGradient and RMSGradient are the largest and RMS component of the
 	// gradient as the criteria measure it (Eh/bohr).
 	MaxGradient, RMSGradient float64
-	// MaxStep and RMSStep measure the next step, the Cartesian
-	// displacement to the minimum of the quadratic model within the trust
-	// radius, as the criteria do (bohr; zero for a rejected step).
+	// MaxStep and RMSStep are the larger of those of the last step and of
+	// the next one (the Cartesian displacement to the minimum of the
+	// quadratic model within the trust radius), as the criteria measure
+	// them (bohr; zero for a rejected step).
 	MaxStep, RMSStep float64
 	// StepLength is the Euclidean length of the Cartesian step that led
 	// here (bohr; zero at the start).
@@ -944,12 +945,14 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 			return res, fmt.Errorf("optimize: step %d: %w", steps+1, err)
 		}
 		maxG, rmsG := r.gradientStats(x, g)
-		// Step criteria on the next step (the displacement to the minimum
-		// of the model), the energy criterion on the last step taken.
+		// Step criteria on the last step and on the next one (the
+		// displacement to the minimum of the model); the energy criterion
+		// on the last step (at the start, the predicted change).
 		maxS, rmsS := maxAbs(prop.dx), rms(prop.dx)
 		dE, lenS := prop.pred, 0.0
 		if haveLast {
 			dE, lenS = lastDE, vnorm(lastDX)
+			maxS, rmsS = math.Max(maxS, maxAbs(lastDX)), math.Max(rmsS, rms(lastDX))
 		}
 		conv := r.crit.met(maxG, rmsG, maxS, rmsS, dE)
 		if r.opt.Progress != nil && !quiet {
