@@ -88,3 +88,67 @@ func TestZmatRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// TestPrimitivesComplete checks that the coordinate sets span all internal
+// degrees of freedom (rank of the Wilson B matrix 3N − 6, or 3N − 5 for a
+// linear molecule) for molecules that need the special cases: linear
+// chains inside a molecule, a linear molecule, a planar three-coordinate
+// atom, rings, a diatomic and two separate fragments.
+func TestPrimitivesComplete(t *testing.T) {
+	tet := 109.4712206
+	cases := []struct {
+		name   string
+		rows   []zrow
+		linear bool
+	}{
+		{"hydrogen", []zrow{{z: 1}, {z: 1, a: 0, r: 0.74}}, true},
+		{"carbon dioxide", []zrow{{z: 8}, {z: 6, a: 0, r: 1.16}, {z: 8, a: 1, r: 1.16, b: 0, theta: 180}}, true},
+		{"acetylene", []zrow{{z: 1}, {z: 6, a: 0, r: 1.06}, {z: 6, a: 1, r: 1.2, b: 0, theta: 180}, {z: 1, a: 2, r: 1.06, b: 1, theta: 180, c: 0}}, true},
+		{"propyne", []zrow{{z: 6}, {z: 6, a: 0, r: 1.46}, {z: 6, a: 1, r: 1.21, b: 0, theta: 180}, {z: 1, a: 2, r: 1.06, b: 1, theta: 180, c: 0},
+			{z: 1, a: 0, r: 1.09, b: 1, theta: 110, c: 2, phi: 0}, {z: 1, a: 0, r: 1.09, b: 1, theta: 110, c: 4, phi: 120},
+			{z: 1, a: 0, r: 1.09, b: 1, theta: 110, c: 4, phi: -120}}, false},
+		{"formaldehyde", []zrow{{z: 6}, {z: 8, a: 0, r: 1.2}, {z: 1, a: 0, r: 1.1, b: 1, theta: 122}, {z: 1, a: 0, r: 1.1, b: 1, theta: 122, c: 2, phi: 180}}, false},
+		{"planar ammonia", []zrow{{z: 7}, {z: 1, a: 0, r: 1.0}, {z: 1, a: 0, r: 1.0, b: 1, theta: 120}, {z: 1, a: 0, r: 1.0, b: 1, theta: 120, c: 2, phi: 180}}, false},
+		{"hydrogen peroxide", []zrow{{z: 1}, {z: 8, a: 0, r: 0.97}, {z: 8, a: 1, r: 1.45, b: 0, theta: 100}, {z: 1, a: 2, r: 0.97, b: 1, theta: 100, c: 0, phi: 115}}, false},
+		{"ethane", []zrow{{z: 6}, {z: 6, a: 0, r: 1.53}, {z: 1, a: 0, r: 1.09, b: 1, theta: tet}, {z: 1, a: 0, r: 1.09, b: 1, theta: tet, c: 2, phi: 120},
+			{z: 1, a: 0, r: 1.09, b: 1, theta: tet, c: 2, phi: -120}, {z: 1, a: 1, r: 1.09, b: 0, theta: tet, c: 2, phi: 60},
+			{z: 1, a: 1, r: 1.09, b: 0, theta: tet, c: 2, phi: 180}, {z: 1, a: 1, r: 1.09, b: 0, theta: tet, c: 2, phi: -60}}, false},
+		{"water dimer", []zrow{{z: 8}, {z: 1, a: 0, r: 0.96}, {z: 1, a: 0, r: 0.96, b: 1, theta: 104.5}, {z: 8, a: 1, r: 1.95, b: 0, theta: 175, c: 2, phi: 0},
+			{z: 1, a: 3, r: 0.96, b: 1, theta: 110, c: 0, phi: 60}, {z: 1, a: 3, r: 0.96, b: 1, theta: 110, c: 0, phi: -60}}, false},
+		{"argon–water", []zrow{{z: 18}, {z: 8, a: 0, r: 3.6}, {z: 1, a: 1, r: 0.96, b: 0, theta: 100}, {z: 1, a: 1, r: 0.96, b: 0, theta: 100, c: 2, phi: 110}}, false},
+	}
+	for _, c := range cases {
+		z, x := build(c.rows)
+		want := 3*len(z) - 6
+		if c.linear {
+			want = 3*len(z) - 5
+		}
+		r := &relaxer{z: z, n: len(z), fidx: make([]int, len(z)), m: 3 * len(z)}
+		for i := range z {
+			r.fidx[i] = i
+			r.free = append(r.free, i)
+		}
+		r.prims = Primitives(z, x, nil)
+		f, err := r.frame(x)
+		if err != nil {
+			t.Errorf("%s: %v", c.name, err)
+			continue
+		}
+		if got := len(f.sig); got != want {
+			t.Errorf("%s: %d independent internal coordinates, want %d", c.name, got, want)
+		}
+		if got := r.m - len(r.rigid(x)); got != want {
+			t.Errorf("%s: %d degrees of freedom by the rigid motions, want %d", c.name, got, want)
+		}
+	}
+	for _, m := range robustnessSet() {
+		r := &relaxer{z: m.z, n: len(m.z), fidx: make([]int, len(m.z)), m: 3 * len(m.z)}
+		for i := range m.z {
+			r.fidx[i] = i
+			r.free = append(r.free, i)
+		}
+		if !r.build(m.x) {
+			t.Errorf("%s: coordinates incomplete", m.name)
+		}
+	}
+}

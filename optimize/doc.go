@@ -65,9 +65,9 @@
 //	strict   1.0e-5        7.0e-6        4.0e-5     3.0e-5     1e-8
 //
 // draft is a quick pre-relaxation (bonds within about 0.01 Å, to be
-// refined); report (the default) gives a structure to publish: the model
-// puts no atom coordinate more than 0.001 Å from the minimum; strict is for
-// a frequency
+// refined); report (the default) gives a structure to publish: neither the
+// last step nor the model's next one moves an atom coordinate by more than
+// 0.001 Å; strict is for a frequency
 // calculation, where a residual gradient shifts the low modes: the largest
 // gradient is 1e-5 Eh/bohr, and on the model surfaces of the tests the
 // geometry is within 1e-5 Å of the exact minimum.

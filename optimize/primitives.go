@@ -32,15 +32,16 @@ func CovalentRadiusBohr(z int) float64 {
 // BondFactor times the sum of their covalent radii (common practice).
 const BondFactor = 1.3
 
-// linearDegrees is the angle above which three atoms count as linear: their
-// bend is described by two LinearBend components instead of an Angle, and
-// dihedrals over them are replaced by dihedrals over the ends of the linear
-// chain.
+// linearDegrees is the angle beyond which an Angle coordinate (or the
+// angle at either end of a dihedral) no longer defines its direction: the
+// coordinates are rebuilt, and a held angle must stay below it.
 const linearDegrees = 175.0
 
 // bendDegrees is the angle above which Primitives describes three atoms
-// with linear bends from the start: below linearDegrees, so that a
-// near-linear start does not need a rebuild on its way to linearity.
+// with two linear bends (an atom with two neighbours) and above which
+// dihedrals are taken through the linear chain: well below linearDegrees,
+// so that a start bent by up to 20° needs no rebuild on its way to
+// linearity.
 const bendDegrees = 160.0
 
 // planarDegrees: an atom with three neighbours whose three angles add up to
@@ -140,7 +141,7 @@ func (u *unionFind) union(i, j int) { u.parent[u.find(i)] = u.find(j) }
 //   - bonds: pairs closer than BondFactor × the sum of covalent radii, and
 //     bonds joining separate fragments (the closest pair of atoms between
 //     two fragments and the pairs nearly as close);
-//   - angles i–j–k for bonds i–j and j–k; above 175° an atom with two
+//   - angles i–j–k for bonds i–j and j–k; above 160° an atom with two
 //     neighbours gets two LinearBend components instead (axes perpendicular
 //     to the line and to each other);
 //   - dihedrals i–j–k–l for every bond j–k, taken over the ends of linear

@@ -33,6 +33,10 @@ const rejectRiseHartree = 1e-6
 // (0.5 Å) is not evaluated; the trust radius shrinks instead.
 const minDistanceBohr = 0.5 * units.AngstromBohr
 
+// maxFailures is the number of consecutive failed evaluations (each retried
+// with a quarter of the step) after which a relaxation gives up.
+const maxFailures = 3
+
 // singularTol: singular values of the Wilson B matrix below this are
 // treated as zero (the redundant directions).
 const singularTol = 1e-4
@@ -121,6 +125,17 @@ type Result struct {
 	Rebuilds int
 }
 
+// OptionsError reports options that do not fit the molecule: a frozen atom
+// or held coordinate that does not exist, a held angle too close to
+// linear, a negative step limit.
+type OptionsError struct{ msg string }
+
+func (e *OptionsError) Error() string { return "optimize: " + e.msg }
+
+func optionsErr(format string, a ...any) error {
+	return &OptionsError{msg: fmt.Sprintf(format, a...)}
+}
+
 // ErrNotConverged is returned (wrapped) when the step limit is reached
 // before convergence; the Result then holds the last accepted geometry.
 var ErrNotConverged = errors.New("relaxation not converged")
@@ -129,9 +144,11 @@ var ErrNotConverged = errors.New("relaxation not converged")
 // bohr) of atoms with atomic numbers z. Each step costs one evaluation of
 // energy and gradient; there are no line searches. It returns the result
 // and, if the step limit was reached first, an error wrapping
-// ErrNotConverged with the result. An evaluation error (or ctx's
-// cancellation) ends the relaxation with the last accepted geometry in the
-// result.
+// ErrNotConverged with the result. A geometry the surface fails to
+// evaluate is retried with a shorter step; three failures in a row, an
+// error at the starting geometry or ctx's cancellation end the relaxation
+// with an error (and, after the start, the last accepted geometry in the
+// result).
 func Relax(ctx context.Context, s gradient.Surface, z []int, xBohr []float64, opt Options) (*Result, error) {
 	r, err := newRelaxer(s, z, xBohr, opt)
 	if err != nil {
@@ -178,10 +195,10 @@ func newRelaxer(s gradient.Surface, z []int, x []float64, opt Options) (*relaxer
 		r.crit, _ = Convergence(DefaultConvergence)
 	}
 	if !r.crit.valid() {
-		return nil, fmt.Errorf("optimize: convergence thresholds must be positive: %+v", r.crit)
+		return nil, optionsErr("convergence thresholds must be positive: %+v", r.crit)
 	}
 	if r.opt.MaxSteps < 0 {
-		return nil, fmt.Errorf("optimize: step limit %d is negative", r.opt.MaxSteps)
+		return nil, optionsErr("step limit %d is negative", r.opt.MaxSteps)
 	}
 	if r.opt.MaxSteps == 0 {
 		r.opt.MaxSteps = DefaultMaxSteps
@@ -190,12 +207,12 @@ func newRelaxer(s gradient.Surface, z []int, x []float64, opt Options) (*relaxer
 		r.trust = DefaultTrustRadius
 	}
 	if !(r.trust > 0) || r.trust > maxTrustRadius {
-		return nil, fmt.Errorf("optimize: trust radius %g outside (0, %g]", r.trust, maxTrustRadius)
+		return nil, optionsErr("trust radius %g outside (0, %g]", r.trust, maxTrustRadius)
 	}
 	frozen := make([]bool, n)
 	for _, a := range opt.Freeze {
 		if a < 0 || a >= n {
-			return nil, fmt.Errorf("optimize: frozen atom %d does not exist (%d atoms)", a+1, n)
+			return nil, optionsErr("frozen atom %d does not exist (%d atoms)", a+1, n)
 		}
 		frozen[a] = true
 	}
@@ -214,7 +231,7 @@ func newRelaxer(s gradient.Surface, z []int, x []float64, opt Options) (*relaxer
 		}
 		for _, d := range r.hold {
 			if sameAtoms(c, d) {
-				return nil, fmt.Errorf("optimize: %s %s is held twice", c.Kind, c.Label(nil))
+				return nil, optionsErr("%s %s is held twice", c.Kind, c.Label(nil))
 			}
 		}
 		r.hold = append(r.hold, c)
@@ -226,22 +243,22 @@ func newRelaxer(s gradient.Surface, z []int, x []float64, opt Options) (*relaxer
 // checkHeld validates a coordinate to hold at geometry x.
 func checkHeld(c Coordinate, n int, x []float64) error {
 	if c.Kind != Bond && c.Kind != Angle && c.Kind != Dihedral {
-		return fmt.Errorf("optimize: only bonds, angles and dihedrals can be held, not a %s", c.Kind)
+		return optionsErr("only bonds, angles and dihedrals can be held, not a %s", c.Kind)
 	}
 	k := c.NumAtoms()
 	for i := 0; i < k; i++ {
 		if c.Atoms[i] < 0 || c.Atoms[i] >= n {
-			return fmt.Errorf("optimize: held %s %s: atom %d does not exist (%d atoms)", c.Kind, c.Label(nil), c.Atoms[i]+1, n)
+			return optionsErr("held %s %s: atom %d does not exist (%d atoms)", c.Kind, c.Label(nil), c.Atoms[i]+1, n)
 		}
 		for j := 0; j < i; j++ {
 			if c.Atoms[i] == c.Atoms[j] {
-				return fmt.Errorf("optimize: held %s %s names atom %d twice", c.Kind, c.Label(nil), c.Atoms[i]+1)
+				return optionsErr("held %s %s names atom %d twice", c.Kind, c.Label(nil), c.Atoms[i]+1)
 			}
 		}
 	}
 	for i := 0; i+2 < k; i++ {
 		if a := angleDegrees(x, c.Atoms[i], c.Atoms[i+1], c.Atoms[i+2]); a > linearDegrees {
-			return fmt.Errorf("optimize: held %s %s: the angle %s is %.1f°, too close to linear (above %.0f°) to define it",
+			return optionsErr("held %s %s: the angle %s is %.1f°, too close to linear (above %.0f°) to define it",
 				c.Kind, c.Label(nil), Coordinate{Kind: Angle, Atoms: [4]int{c.Atoms[i], c.Atoms[i+1], c.Atoms[i+2]}}.Label(nil), a, linearDegrees)
 		}
 	}
@@ -359,6 +376,10 @@ func (r *relaxer) rigid(x []float64) [][]float64 {
 			}
 		}
 	}
+	// Generators that hardly move any atom (the rotation about the axis
+	// of a linear molecule) are dropped: the scale is that of a
+	// translation, √N bohr.
+	small := 1e-6 * math.Sqrt(float64(r.n))
 	vs := make([][]float64, 0, len(combos))
 	for _, cb := range combos {
 		v := make([]float64, 3*r.n)
@@ -367,7 +388,9 @@ func (r *relaxer) rigid(x []float64) [][]float64 {
 				v[i] += cb[g] * gen[g][i]
 			}
 		}
-		vs = append(vs, r.freeVec(v))
+		if fv := r.freeVec(v); vnorm(fv) > small {
+			vs = append(vs, fv)
+		}
 	}
 	return orthonormalize(vs, 1e-6)
 }
@@ -937,7 +960,7 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 	lastDE := 0.0
 	haveLast := false
 	quiet := false // the geometry was reported already (a step from it was rejected)
-	steps := 0
+	steps, failures := 0, 0
 	for {
 		prop, err := r.propose(x, g)
 		if err != nil {
@@ -976,10 +999,20 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 		}
 		e1, g1, err := r.evaluate(ctx, prop.x)
 		if err != nil {
-			finish(false)
-			res.Steps = steps
-			return res, fmt.Errorf("optimize: step %d: %w", steps+1, err)
+			steps++
+			failures++
+			if ctx.Err() != nil || failures >= maxFailures || r.trust <= minTrustRadius {
+				finish(false)
+				res.Steps = steps
+				return res, fmt.Errorf("optimize: step %d: %w", steps, err)
+			}
+			// The surface could not evaluate the new geometry (an SCF that
+			// does not converge far from the last one): try a shorter step.
+			r.trust = math.Max(minTrustRadius, 0.25*math.Min(r.trust, prop.norm))
+			quiet = true
+			continue
 		}
+		failures = 0
 		steps++
 		r.update(x, g, prop.x, g1)
 		dE1 := e1 - energy

@@ -4,9 +4,11 @@ import (
 	"context"
 	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"poise/energy/units"
+	"poise/gradient"
 )
 
 // TestModelMinima relaxes every model surface from a start distorted by
@@ -79,5 +81,67 @@ func TestCancel(t *testing.T) {
 	}})
 	if !errors.Is(err, context.Canceled) {
 		t.Fatalf("error %v, want context.Canceled", err)
+	}
+}
+
+// TestLinearStart starts the linear model exactly linear, with unequal
+// stretched bonds: the bends carry no gradient and must stay linear.
+func TestLinearStart(t *testing.T) {
+	mc := modelCases()[3]
+	_, x0 := build([]zrow{{z: 8}, {z: 6, a: 0, r: 1.30}, {z: 8, a: 1, r: 1.05, b: 0, theta: 180}})
+	strict, _ := Convergence("strict")
+	for _, cart := range []bool{false, true} {
+		res, err := Relax(context.Background(), mc.surf(), mc.z, x0, Options{Criteria: strict, Cartesian: cart})
+		if err != nil {
+			t.Fatalf("cartesian %v: %v", cart, err)
+		}
+		for i := 0; i < 3; i++ {
+			for j := i + 1; j < 3; j++ {
+				if d := math.Abs(tdist(res.XBohr, i, j)-tdist(mc.ref, i, j)) * units.BohrAngstrom; d > 1e-5 {
+					t.Errorf("cartesian %v: distance %d–%d off by %.2e Å", cart, i+1, j+1, d)
+				}
+			}
+		}
+	}
+}
+
+// failingSurface fails the evaluations whose numbers are listed (counting
+// from 1), as an SCF that does not converge would.
+type failingSurface struct {
+	*modelSurface
+	fail  map[int]bool
+	calls int
+}
+
+func (f *failingSurface) Evaluate(ctx context.Context, x []float64, req gradient.Request, out *gradient.Point) error {
+	f.calls++
+	if f.fail[f.calls] {
+		return errors.New("model: no convergence")
+	}
+	return f.modelSurface.Evaluate(ctx, x, req, out)
+}
+
+// TestEvaluationFailures: a failed evaluation is retried with a shorter
+// step; three in a row end the relaxation with the last good geometry.
+func TestEvaluationFailures(t *testing.T) {
+	mc := modelCases()[0]
+	x0 := distort(mc.z, mc.ref, 0.2, 15)
+	s := &failingSurface{modelSurface: mc.surf(), fail: map[int]bool{2: true, 3: true}}
+	res, err := Relax(context.Background(), s, mc.z, x0, Options{})
+	if err != nil || !res.Converged {
+		t.Fatalf("two failures: result %+v, error %v", res, err)
+	}
+	s = &failingSurface{modelSurface: mc.surf(), fail: map[int]bool{2: true, 3: true, 4: true}}
+	res, err = Relax(context.Background(), s, mc.z, x0, Options{})
+	if err == nil || !strings.Contains(err.Error(), "no convergence") {
+		t.Fatalf("three failures: error %v", err)
+	}
+	if res == nil || res.Converged || res.Steps != 3 {
+		t.Fatalf("three failures: result %+v", res)
+	}
+	for i := range x0 {
+		if res.XBohr[i] != x0[i] {
+			t.Fatal("the result is not the last good geometry")
+		}
 	}
 }

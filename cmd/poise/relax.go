@@ -116,12 +116,18 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 	}
 	nat := len(s.mol.Atoms)
 	var freeze []int
+	frozen := map[int]bool{}
 	for _, v := range f.freeze {
 		atoms, err := optimize.ParseAtoms(v, nat)
 		if err != nil {
 			return usageErr(fmt.Errorf("--freeze %w", err))
 		}
-		freeze = append(freeze, atoms...)
+		for _, a := range atoms {
+			if !frozen[a] {
+				frozen[a] = true
+				freeze = append(freeze, a)
+			}
+		}
 	}
 	var hold []optimize.Coordinate
 	for _, v := range f.hold {
@@ -229,6 +235,10 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 	})
 	if progress {
 		fmt.Fprint(os.Stderr, "\r\033[K")
+	}
+	var optErr *optimize.OptionsError
+	if errors.As(relaxErr, &optErr) {
+		return usageErr(relaxErr)
 	}
 	if res == nil {
 		// The starting geometry could not be evaluated.
@@ -470,7 +480,11 @@ func printRelaxReport(w io.Writer, rep *relaxReport, z []int, x0, x []float64, h
 			f, unit = "%.2f", 180/math.Pi
 		}
 		v0, v1 = v0*unit, v1*unit
-		return []string{c.Label(rep.Symbols), fmt.Sprintf(f, v0), fmt.Sprintf(f, v1), fmt.Sprintf("%+"+f[1:], v1-v0), mark(c, contact)}
+		change := fmt.Sprintf("%+"+f[1:], v1-v0)
+		if strings.Trim(change, "+-0.") == "" {
+			change = "+" + change[1:] // no "−0.0000"
+		}
+		return []string{c.Label(rep.Symbols), fmt.Sprintf(f, v0), fmt.Sprintf(f, v1), change, mark(c, contact)}
 	}
 	// Bonds at the final geometry; pairs beyond the covalent criterion
 	// (joining separate fragments) are marked as contacts.

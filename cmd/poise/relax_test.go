@@ -169,6 +169,7 @@ func TestRelaxUsageErrors(t *testing.T) {
 		{[]string{"--freeze", "x"}, "not an atom number"},
 		{[]string{"--freeze", "0"}, "does not exist"},
 		{[]string{"--out", filepath.Dir(in)}, "overwrite"},
+		{[]string{"--hold", "1-2", "--hold", "2-1"}, "held twice"},
 	} {
 		args := append([]string{"relax", in, "--method", "hf", "--basis", "sto-3g", "--threads", "1"}, c.args...)
 		out, code, err := runCLI(t, args...)
