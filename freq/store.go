@@ -8,6 +8,8 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+
+	"poise/internal/atomicfile"
 )
 
 // The work directory of a Hessian holds one small JSON file per finished
@@ -209,37 +211,9 @@ func (s *store) save(name string, p *storedPoint) error {
 	return nil
 }
 
-// WriteFileAtomic writes data to path through a temporary file in the same
-// directory and a rename, so that readers (and a later run after a crash)
-// see either the old file or the whole new one.
-func WriteFileAtomic(path string, data []byte) error {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	f, err := os.CreateTemp(dir, ".tmp-"+base+"-*")
-	if err != nil {
-		return err
-	}
-	tmp := f.Name()
-	_, werr := f.Write(data)
-	if werr == nil {
-		werr = f.Sync()
-	}
-	if cerr := f.Close(); werr == nil {
-		werr = cerr
-	}
-	if werr == nil {
-		werr = os.Chmod(tmp, 0o644)
-	}
-	if werr == nil {
-		werr = os.Rename(tmp, path)
-	}
-	if werr != nil {
-		os.Remove(tmp)
-		return werr
-	}
-	return nil
-}
+// WriteFileAtomic writes data to path atomically (temporary file and
+// rename), so that readers and a later run after a crash see either the old
+// file or the whole new one.
+func WriteFileAtomic(path string, data []byte) error { return atomicfile.Write(path, data) }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

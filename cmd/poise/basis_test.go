@@ -1,8 +1,6 @@
 package main
 
 import (
-	"bytes"
-	"errors"
 	"strings"
 	"testing"
 )
@@ -11,21 +9,8 @@ import (
 // status reportError would give.
 func runBasisCmd(t *testing.T, args ...string) (string, int, error) {
 	t.Helper()
-	root := newRootCmd()
-	var out bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&out)
-	root.SetArgs(args)
-	err := root.Execute()
-	code := exitOK
-	if err != nil {
-		code = exitUsage // cobra's own argument errors
-		var ee *exitError
-		if errors.As(err, &ee) {
-			code = ee.code
-		}
-	}
-	return out.String(), code, err
+	out, _, code, err := execCLI(t, true, args...)
+	return out, code, err
 }
 
 func TestBasisCommand(t *testing.T) {

@@ -1,9 +1,7 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
-	"errors"
 	"os"
 	"path/filepath"
 	"strings"
@@ -13,21 +11,8 @@ import (
 // runCLI executes poise with args and returns stdout and the exit status.
 func runCLI(t *testing.T, args ...string) (string, int, error) {
 	t.Helper()
-	root := newRootCmd()
-	var out bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&out)
-	root.SetArgs(args)
-	err := root.Execute()
-	code := exitOK
-	if err != nil {
-		code = exitFailure
-		var ee *exitError
-		if errors.As(err, &ee) {
-			code = ee.code
-		}
-	}
-	return out.String(), code, err
+	out, _, code, err := execCLI(t, true, args...)
+	return out, code, err
 }
 
 func writeFile(t *testing.T, name, text string) string {

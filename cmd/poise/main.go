@@ -98,10 +98,17 @@ func convergeErr(err error) error {
 
 // reportError prints err (if any) and returns the exit status for it.
 func reportError(w *os.File, err error) int {
+	if err != nil {
+		fmt.Fprintf(w, "poise: %v\n", err)
+	}
+	return exitCode(err)
+}
+
+// exitCode is the exit status for err.
+func exitCode(err error) int {
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintf(w, "poise: %v\n", err)
 	var ee *exitError
 	if errors.As(err, &ee) {
 		return ee.code

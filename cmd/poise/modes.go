@@ -21,7 +21,6 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
-	"gonum.org/v1/plot/vg/draw"
 	_ "gonum.org/v1/plot/vg/vgimg" // registers png
 	_ "gonum.org/v1/plot/vg/vgsvg" // registers svg
 
@@ -656,24 +655,7 @@ func plotIRSpectrum(path string, file *freq.File, fwhm float64) error {
 	sticks.Y.Max = 1.1 * math.Max(maxOf(file.IRIntensities), 1e-3)
 	broad.Y.Max = 1.1 * math.Max(maxOf(spec), 1e-6)
 
-	format := strings.TrimPrefix(strings.ToLower(filepath.Ext(path)), ".")
-	const width, height = 16 * vg.Centimeter, 16 * vg.Centimeter
-	canvas, err := draw.NewFormattedCanvas(width, height, format)
-	if err != nil {
-		return err
-	}
-	tiles := draw.Tiles{Rows: 2, Cols: 1, PadX: vg.Millimeter, PadY: 4 * vg.Millimeter,
-		PadTop: 2 * vg.Millimeter, PadBottom: 2 * vg.Millimeter, PadLeft: 2 * vg.Millimeter, PadRight: 4 * vg.Millimeter}
-	plots := [][]*plot.Plot{{sticks}, {broad}}
-	cells := plot.Align(plots, tiles, draw.New(canvas))
-	for r := range plots {
-		plots[r][0].Draw(cells[r][0])
-	}
-	var buf bytes.Buffer
-	if _, err := canvas.WriteTo(&buf); err != nil {
-		return err
-	}
-	return freq.WriteFileAtomic(path, buf.Bytes())
+	return writeStackedPlots(path, []*plot.Plot{sticks, broad}, 16*vg.Centimeter, 16*vg.Centimeter)
 }
 
 func maxOf(v []float64) float64 {

@@ -1,9 +1,7 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
-	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -21,22 +19,8 @@ const modesWaterXYZ = "../../testdata/molecules/water.xyz"
 // error and the exit status reportError would give.
 func runModesCmd(t *testing.T, args ...string) (string, string, int) {
 	t.Helper()
-	root := newRootCmd()
-	var out, errOut bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&errOut)
-	root.SetArgs(args)
-	err := root.Execute()
-	code := exitOK
-	if err != nil {
-		code = exitUsage
-		var ee *exitError
-		if errors.As(err, &ee) {
-			code = ee.code
-		}
-		errOut.WriteString(err.Error())
-	}
-	return out.String(), errOut.String(), code
+	out, errOut, code, _ := execCLI(t, false, args...)
+	return out, errOut, code
 }
 
 // waterModesRun computes water at HF/STO-3G into a temporary directory

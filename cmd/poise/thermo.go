@@ -7,7 +7,6 @@ import (
 	"image/color"
 	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -18,7 +17,6 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
-	"gonum.org/v1/plot/vg/draw"
 	_ "gonum.org/v1/plot/vg/vgimg" // registers png
 	_ "gonum.org/v1/plot/vg/vgsvg" // registers svg
 
@@ -702,26 +700,5 @@ func plotThermoScan(path, formula string, scan []thermoPoint) error {
 	if err != nil {
 		return err
 	}
-	format := strings.TrimPrefix(strings.ToLower(filepath.Ext(path)), ".")
-	const width, height = 15 * vg.Centimeter, 18 * vg.Centimeter
-	canvas, err := draw.NewFormattedCanvas(width, height, format)
-	if err != nil {
-		return err
-	}
-	tiles := draw.Tiles{Rows: 2, Cols: 1, PadX: vg.Millimeter, PadY: 4 * vg.Millimeter,
-		PadTop: 2 * vg.Millimeter, PadBottom: 2 * vg.Millimeter, PadLeft: 2 * vg.Millimeter, PadRight: 4 * vg.Millimeter}
-	plots := [][]*plot.Plot{{top}, {bottom}}
-	cells := plot.Align(plots, tiles, draw.New(canvas))
-	for r := range plots {
-		plots[r][0].Draw(cells[r][0])
-	}
-	file, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	if _, err := canvas.WriteTo(file); err != nil {
-		file.Close()
-		return err
-	}
-	return file.Close()
+	return writeStackedPlots(path, []*plot.Plot{top, bottom}, 15*vg.Centimeter, 18*vg.Centimeter)
 }

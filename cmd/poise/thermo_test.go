@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -23,21 +22,7 @@ const (
 // error and the exit status reportError would give.
 func runThermoCmd(t *testing.T, args ...string) (string, string, int, error) {
 	t.Helper()
-	root := newRootCmd()
-	var out, errOut bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&errOut)
-	root.SetArgs(args)
-	err := root.Execute()
-	code := exitOK
-	if err != nil {
-		code = exitUsage // cobra's own flag and argument errors
-		var ee *exitError
-		if errors.As(err, &ee) {
-			code = ee.code
-		}
-	}
-	return out.String(), errOut.String(), code, err
+	return execCLI(t, false, args...)
 }
 
 func thermoJSON(t *testing.T, args ...string) map[string]any {
