@@ -147,55 +147,14 @@ func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, out [
 	}
 	evalFunctionDerivatives(p.b, ws, bt.Start, np, shells, m, gga, g.X, g.Y, g.Z)
 
-	n := p.b.NBF
 	nspin := len(dens)
 	w := g.W[bt.Start:bt.End]
-	phiM := mat.NewDense(np, m, ws.phi)
-	rho := make([][]float64, nspin)
-	grad := make([][3][]float64, nspin)
-	us := make([][]float64, nspin)
-	dsubs := make([][]float64, nspin)
-	for s := 0; s < nspin; s++ {
-		dsub := make([]float64, m*m)
-		for a := 0; a < m; a++ {
-			row := fns[a] * n
-			for b := 0; b < m; b++ {
-				dsub[a*m+b] = dens[s][row+fns[b]]
-			}
-		}
-		dsubs[s] = dsub
-		u := make([]float64, np*m)
-		mat.NewDense(np, m, u).Mul(phiM, mat.NewDense(m, m, dsub))
-		us[s] = u
-		r := make([]float64, np)
-		var gr [3][]float64
-		if gga {
-			for k := range gr {
-				gr[k] = make([]float64, np)
-			}
-		}
-		for pt := 0; pt < np; pt++ {
-			ur := u[pt*m : pt*m+m]
-			pr := ws.phi[pt*m : pt*m+m]
-			var sr float64
-			for a, uv := range ur {
-				sr += uv * pr[a]
-			}
-			r[pt] = sr
-			if gga {
-				for k := 0; k < 3; k++ {
-					dr := ws.d1[k][pt*m : pt*m+m]
-					var sk float64
-					for a, uv := range ur {
-						sk += uv * dr[a]
-					}
-					gr[k][pt] = 2 * sk
-				}
-			}
-		}
-		rho[s] = r
-		grad[s] = gr
+	var d1 [3][]float64
+	if gga {
+		d1 = ws.d1
 	}
+	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens)
+	rho, grad, us, dsubs := bd.rho, bd.grad, bd.u, bd.dsub
 	// Per spin and point: a = w ∂e/∂ρ_s, b_k = w g_k.
 	coefA := make([][]float64, nspin)
 	coefB := make([][3][]float64, nspin)

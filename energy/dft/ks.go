@@ -190,50 +190,14 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64) batchResult {
 	}
 	p.evalFunctions(ws, bt.Start, np, shells, m, gga)
 
-	n := p.b.NBF
 	nspin := len(dens)
-	rho := make([][]float64, nspin)
-	grad := make([][3][]float64, nspin)
-	phiM := mat.NewDense(np, m, ws.phi)
-	for s := 0; s < nspin; s++ {
-		dsub := make([]float64, m*m)
-		for a := 0; a < m; a++ {
-			row := fns[a] * n
-			for b := 0; b < m; b++ {
-				dsub[a*m+b] = dens[s][row+fns[b]]
-			}
-		}
-		x := make([]float64, np*m)
-		mat.NewDense(np, m, x).Mul(phiM, mat.NewDense(m, m, dsub))
-		r := make([]float64, np)
-		var gr [3][]float64
-		if gga {
-			for k := range gr {
-				gr[k] = make([]float64, np)
-			}
-		}
-		for pt := 0; pt < np; pt++ {
-			xr := x[pt*m : pt*m+m]
-			pr := ws.phi[pt*m : pt*m+m]
-			var sr float64
-			for a, xv := range xr {
-				sr += xv * pr[a]
-			}
-			r[pt] = sr
-			if gga {
-				var sx, sy, sz float64
-				gxr, gyr, gzr := ws.gx[pt*m:pt*m+m], ws.gy[pt*m:pt*m+m], ws.gz[pt*m:pt*m+m]
-				for a, xv := range xr {
-					sx += xv * gxr[a]
-					sy += xv * gyr[a]
-					sz += xv * gzr[a]
-				}
-				gr[0][pt], gr[1][pt], gr[2][pt] = 2*sx, 2*sy, 2*sz
-			}
-		}
-		rho[s] = r
-		grad[s] = gr
+	var d1 [3][]float64
+	if gga {
+		d1 = [3][]float64{ws.gx, ws.gy, ws.gz}
 	}
+	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens)
+	rho, grad := bd.rho, bd.grad
+	phiM := mat.NewDense(np, m, ws.phi)
 	w := g.W[bt.Start:bt.End]
 	e := make([]float64, np)
 	// zcoef[s] holds, per point, the coefficients of φ (index 0) and of
@@ -413,4 +377,67 @@ func (p *Potential) evalFunctions(ws *workspace, start, np int, shells []int32, 
 		}
 		col += nf
 	}
+}
+
+// batchDensities are the densities of one batch of points, per spin.
+type batchDensities struct {
+	rho  [][]float64    // ρ_s at the points
+	grad [][3][]float64 // ∇ρ_s (GGA only)
+	dsub [][]float64    // the m×m block of D_s over the batch's functions
+	u    [][]float64    // U = φ·D_sub (np×m), reused by the gradient
+}
+
+// batchDensity forms ρ_s = Σ_μν D_μν φ_μ φ_ν and, when d1 (the first
+// derivatives of the functions, np×m each) is given, ∇ρ_s = 2 Σ_μν D_μν
+// φ_μ ∇φ_ν at the np points whose function values (np×m) are phi, for the
+// m functions fns of a basis of n.
+func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, dens [][]float64) batchDensities {
+	nspin := len(dens)
+	gga := d1[0] != nil
+	out := batchDensities{
+		rho:  make([][]float64, nspin),
+		grad: make([][3][]float64, nspin),
+		dsub: make([][]float64, nspin),
+		u:    make([][]float64, nspin),
+	}
+	phiM := mat.NewDense(np, m, phi)
+	for s := 0; s < nspin; s++ {
+		dsub := make([]float64, m*m)
+		for a := 0; a < m; a++ {
+			row := fns[a] * n
+			for b := 0; b < m; b++ {
+				dsub[a*m+b] = dens[s][row+fns[b]]
+			}
+		}
+		u := make([]float64, np*m)
+		mat.NewDense(np, m, u).Mul(phiM, mat.NewDense(m, m, dsub))
+		r := make([]float64, np)
+		var gr [3][]float64
+		if gga {
+			for k := range gr {
+				gr[k] = make([]float64, np)
+			}
+		}
+		for pt := 0; pt < np; pt++ {
+			ur := u[pt*m : pt*m+m]
+			pr := phi[pt*m : pt*m+m]
+			var sr float64
+			for a, uv := range ur {
+				sr += uv * pr[a]
+			}
+			r[pt] = sr
+			if gga {
+				for k := 0; k < 3; k++ {
+					dr := d1[k][pt*m : pt*m+m]
+					var sk float64
+					for a, uv := range ur {
+						sk += uv * dr[a]
+					}
+					gr[k][pt] = 2 * sk
+				}
+			}
+		}
+		out.rho[s], out.grad[s], out.dsub[s], out.u[s] = r, gr, dsub, u
+	}
+	return out
 }
