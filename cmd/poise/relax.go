@@ -19,6 +19,7 @@ import (
 	"poise/energy/scf"
 	"poise/energy/units"
 	"poise/gradient"
+	"poise/internal/atomicfile"
 	"poise/optimize"
 )
 
@@ -222,7 +223,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 			if err := molecule.WriteXYZ(&traj, frame, comment); err != nil && writeErr == nil {
 				writeErr = err
 			}
-			if err := writeFileAtomic(trajPath, traj.Bytes()); err != nil && writeErr == nil {
+			if err := atomicfile.Write(trajPath, traj.Bytes()); err != nil && writeErr == nil {
 				writeErr = err
 			}
 			if !st.Rejected {
@@ -393,39 +394,7 @@ func writeGeometry(path string, m *molecule.Molecule, comment string) error {
 	if err := molecule.WriteXYZ(&b, m, comment); err != nil {
 		return err
 	}
-	return writeFileAtomic(path, b.Bytes())
-}
-
-// writeFileAtomic replaces path by data through a temporary file in the
-// same directory and a rename, so that readers never see a partial file.
-func writeFileAtomic(path string, data []byte) error {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	tmp, err := os.CreateTemp(dir, "."+base+".*.tmp")
-	if err != nil {
-		return err
-	}
-	name := tmp.Name()
-	if _, err := tmp.Write(data); err != nil {
-		tmp.Close()
-		os.Remove(name)
-		return err
-	}
-	if err := tmp.Close(); err != nil {
-		os.Remove(name)
-		return err
-	}
-	if err := os.Chmod(name, 0o644); err != nil {
-		os.Remove(name)
-		return err
-	}
-	if err := os.Rename(name, path); err != nil {
-		os.Remove(name)
-		return err
-	}
-	return nil
+	return atomicfile.Write(path, b.Bytes())
 }
 
 // sameFile reports whether a and b name the same existing file.
