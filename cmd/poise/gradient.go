@@ -17,34 +17,17 @@ import (
 	"poise/gradient"
 )
 
-// gradientReport is the JSON form of a gradient calculation.
+// gradientReport is the JSON form of a gradient calculation: everything of
+// the energy report plus the gradient.
 type gradientReport struct {
-	File                   string       `json:"file"`
-	Formula                string       `json:"formula"`
-	Method                 string       `json:"method"`
-	Basis                  string       `json:"basis"`
-	Functions              string       `json:"angular_functions"`
-	Charge                 int          `json:"charge"`
-	Multiplicity           int          `json:"multiplicity"`
-	Unrestricted           bool         `json:"unrestricted"`
-	EnergyHartree          float64      `json:"energy_hartree"`
-	DispersionHartree      float64      `json:"dispersion_energy_hartree"`
-	LevelOfTheory          string       `json:"level_of_theory"`
-	Converged              bool         `json:"converged"`
-	Iterations             int          `json:"iterations"`
+	*energyReport
 	GradientHartreePerBohr [][3]float64 `json:"gradient_hartree_per_bohr"`
 	RMSHartreePerBohr      float64      `json:"rms_gradient_hartree_per_bohr"`
 	MaxHartreePerBohr      float64      `json:"max_gradient_hartree_per_bohr"`
 	Numeric                bool         `json:"numeric"`
 	StepBohr               float64      `json:"step_bohr,omitempty"`
-	GridLevel              int          `json:"grid_level,omitempty"`
-	GridPoints             int          `json:"grid_points,omitempty"`
-	Threads                int          `json:"threads"`
 	SCFSeconds             float64      `json:"scf_seconds"`
 	GradientSeconds        float64      `json:"gradient_seconds"`
-	Version                string       `json:"program_version"`
-	Symbols                []string     `json:"symbols"`
-	GeometryAngstrom       [][3]float64 `json:"geometry_angstrom"`
 }
 
 func newGradientCmd() *cobra.Command {
@@ -99,7 +82,6 @@ func newGradientCmd() *cobra.Command {
 			}
 			rep.DispersionHartree = ed
 			rep.EnergyHartree += ed
-			rep.LevelOfTheory = s.label()
 			rep.Numeric = numeric
 			if numeric {
 				rep.StepBohr = step
@@ -194,27 +176,7 @@ func computeGradient(cmd *cobra.Command, s *setup, res *scf.Result, numeric bool
 }
 
 func makeGradientReport(path string, s *setup, res *scf.Result, g [][3]float64, threads int) *gradientReport {
-	e := makeEnergyReport(path, s, res, threads)
-	rep := &gradientReport{
-		File:                   e.File,
-		Formula:                e.Formula,
-		Method:                 e.Method,
-		Basis:                  e.Basis,
-		Functions:              e.Functions,
-		Charge:                 e.Charge,
-		Multiplicity:           e.Multiplicity,
-		Unrestricted:           e.Unrestricted,
-		EnergyHartree:          e.EnergyHartree,
-		Converged:              e.Converged,
-		Iterations:             e.Iterations,
-		GradientHartreePerBohr: g,
-		GridLevel:              e.GridLevel,
-		GridPoints:             e.GridPoints,
-		Threads:                threads,
-		Version:                version,
-		Symbols:                e.Symbols,
-		GeometryAngstrom:       e.GeometryAngstrom,
-	}
+	rep := &gradientReport{energyReport: makeEnergyReport(path, s, res, threads), GradientHartreePerBohr: g}
 	var ss float64
 	for _, v := range g {
 		for _, c := range v {
