@@ -55,7 +55,7 @@ func (p *Potential) Gradient(ctx context.Context, dens [][]float64, natoms int) 
 		}
 	}
 	nb := len(p.grid.Batches)
-	const group = 64 // batches per group: fixed, independent of threads
+	const group = 512 // batches per group (small per-atom results): fixed, independent of threads
 	results := make([][]float64, group)
 	for i := range results {
 		results[i] = make([]float64, 3*natoms)

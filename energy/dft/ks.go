@@ -27,7 +27,15 @@ type Potential struct {
 	extent  []float64 // per shell: radius beyond which it is below functionCutoff
 	// Per batch: the shells that reach it (fixed for a geometry).
 	batchShells [][]int32
+	// group is the number of batches whose results are held before they
+	// are added in order: as many as fit in groupBytes (at least 16, at
+	// most 512), a property of the system, never of the thread count.
+	group int
 }
+
+// groupBytes bounds the memory of the per-batch potential blocks held at
+// once by Build.
+const groupBytes = 64 << 20
 
 // New prepares the exchange–correlation build. threads ≤ 0 means all cores.
 func New(fn *xc.Functional, g *grid.Grid, b *integral.Basis, threads int) *Potential {
@@ -49,6 +57,15 @@ func New(fn *xc.Functional, g *grid.Grid, b *integral.Basis, threads int) *Poten
 			}
 		}
 	}
+	maxM := 1
+	for _, sh := range p.batchShells {
+		m := 0
+		for _, si := range sh {
+			m += b.Shells[si].NumFunctions()
+		}
+		maxM = max(maxM, m)
+	}
+	p.group = min(512, max(16, groupBytes/(16*maxM*maxM)))
 	return p
 }
 
@@ -88,7 +105,7 @@ type batchResult struct {
 // energy and the integrated electron count.
 func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) (float64, float64, error) {
 	nb := len(p.grid.Batches)
-	const group = 64 // batches per group: fixed, independent of threads
+	group := p.group
 	results := make([]batchResult, group)
 	var exc, nel float64
 	n := p.b.NBF
