@@ -20,6 +20,10 @@ const schwarzThreshold = 1e-12
 // threads.
 const quartetsPerChunk = 2048
 
+// waveBytes bounds the memory of the per-chunk Coulomb and exchange buffers
+// held at once by a Fock build.
+const waveBytes = 64 << 20
+
 // jkBuilder forms Coulomb and exchange matrices from densities, keeping the
 // electron-repulsion integrals in memory when they fit, else recomputing
 // them on every build (integral-direct).
@@ -39,6 +43,14 @@ type jkBuilder struct {
 	incore  []float64
 	offsets []int // start of each quartet's block in incore
 
+	pool []jkBuffers // per-chunk accumulation buffers, reused between builds
+
+}
+
+// jkBuffers are the Coulomb and exchange accumulators of one chunk.
+type jkBuffers struct {
+	j []float64
+	k [][]float64
 }
 
 // newJKBuilder screens shell quartets and, when memoryBytes allows, computes
@@ -177,22 +189,26 @@ func (jk *jkBuilder) build(ctx context.Context, dens [][]float64, wantK bool) (J
 	}
 	// One buffer set per chunk in flight; chunks are reduced in index order.
 	nc := len(jk.chunks) - 1
-	wave := jk.threads * 2
+	// Chunks in flight at once: as many buffer sets as fit in
+	// waveBytes (at least 2·threads), so that workers rarely wait for the
+	// in-order reduction. The grouping never changes the result.
+	wave := max(2*jk.threads, int(waveBytes/int64(8*n*n*(1+nk))))
 	if wave > nc {
 		wave = nc
 	}
-	type bufs struct {
-		j []float64
-		k [][]float64
-	}
-	pool := make([]bufs, wave)
-	for i := range pool {
-		pool[i].j = make([]float64, n*n)
-		pool[i].k = make([][]float64, nk)
-		for s := range pool[i].k {
-			pool[i].k[s] = make([]float64, n*n)
+	// Buffers are kept between builds (an SCF builds once per iteration,
+	// never concurrently) so that their pages are touched only once.
+	if len(jk.pool) < wave || (len(jk.pool) > 0 && len(jk.pool[0].k) != nk) {
+		jk.pool = make([]jkBuffers, wave)
+		for i := range jk.pool {
+			jk.pool[i].j = make([]float64, n*n)
+			jk.pool[i].k = make([][]float64, nk)
+			for s := range jk.pool[i].k {
+				jk.pool[i].k[s] = make([]float64, n*n)
+			}
 		}
 	}
+	pool := jk.pool
 	J = make([]float64, n*n)
 	K = make([][]float64, nk)
 	for s := range K {
