@@ -64,30 +64,35 @@ func newJKBuilder(ctx context.Context, b *integral.Basis, threads int, memoryByt
 	jk := &jkBuilder{b: b, eri: eri, n: b.NBF, threads: threads}
 	q := eri.SchwarzMatrix()
 	nf := func(s int) int { return b.Shells[s].NumFunctions() }
-	var storeWords int64
-	for i := 0; i < ns; i++ {
-		for j := 0; j <= i; j++ {
-			qij := q[i*ns+j]
-			ij := i*(i+1)/2 + j
-			for k := 0; k <= i; k++ {
-				lmax := k
-				if k == i {
-					lmax = j
-				}
-				for l := 0; l <= lmax; l++ {
-					kl := k*(k+1)/2 + l
-					if kl > ij {
-						continue
+	// visit calls fn for every canonical quartet that survives screening.
+	visit := func(fn func(i, j, k, l int)) {
+		for i := 0; i < ns; i++ {
+			for j := 0; j <= i; j++ {
+				qij := q[i*ns+j]
+				ij := i*(i+1)/2 + j
+				for k := 0; k <= i; k++ {
+					lmax := k
+					if k == i {
+						lmax = j
 					}
-					if qij*q[k*ns+l] < schwarzThreshold {
-						continue
+					for l := 0; l <= lmax; l++ {
+						if k*(k+1)/2+l > ij || qij*q[k*ns+l] < schwarzThreshold {
+							continue
+						}
+						fn(i, j, k, l)
 					}
-					jk.quartets = append(jk.quartets, int32(i), int32(j), int32(k), int32(l))
-					storeWords += int64(nf(i) * nf(j) * nf(k) * nf(l))
 				}
 			}
 		}
 	}
+	count := 0
+	visit(func(_, _, _, _ int) { count++ })
+	jk.quartets = make([]int32, 0, 4*count)
+	var storeWords int64
+	visit(func(i, j, k, l int) {
+		jk.quartets = append(jk.quartets, int32(i), int32(j), int32(k), int32(l))
+		storeWords += int64(nf(i) * nf(j) * nf(k) * nf(l))
+	})
 	nq := len(jk.quartets) / 4
 	for s := 0; s < nq; s += quartetsPerChunk {
 		jk.chunks = append(jk.chunks, s)
