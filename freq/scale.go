@@ -15,7 +15,7 @@ type ScaleFactors struct {
 	Frequency float64
 	// ZPE scales the zero-point energy.
 	ZPE float64
-	// Enthalpy and Entropy scale the low frequencies entering the
+	// Enthalpy and Entropy scale the wavenumbers entering the
 	// vibrational thermal enthalpy H(T) − H(0) and the vibrational entropy
 	// at 298 K (0: none published here).
 	Enthalpy, Entropy float64

@@ -297,14 +297,14 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 	}
 	stderr := cmd.ErrOrStderr()
 	progress := !f.asJSON && isTerminal(os.Stderr)
-	opt := freq.HessianOptions{
+	hopts := freq.HessianOptions{
 		StepBohr: f.step, FourPoint: f.fourPoint, Dipole: true,
 		Threads: lf.threads, Concurrent: f.concurrent,
 		WorkDir: work, Tag: levelTag(s, conv), DiscardStale: true,
 		Charge: float64(s.mol.Charge), MassesU: masses,
 	}
 	if progress {
-		opt.Progress = func(p freq.Progress) {
+		hopts.Progress = func(p freq.Progress) {
 			fmt.Fprintf(os.Stderr, "\r  displaced points %d/%d", p.Done, p.Total)
 			if p.Reused > 0 {
 				fmt.Fprintf(os.Stderr, " (%d from %s)", p.Reused, work)
@@ -313,11 +313,11 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 		}
 	}
 	// A work directory of another calculation is emptied; say so.
-	if old := countDisplacements(work); old > 0 && !sameWork(work, opt.Tag) {
+	if old := countDisplacements(work); old > 0 && !sameWork(work, hopts.Tag) {
 		fmt.Fprintf(stderr, "poise: note: %s held %d points of another geometry or level of theory; they are replaced\n", work, old)
 	}
 	t0 := time.Now()
-	h, err := freq.ComputeHessian(cmd.Context(), surf, x0, opt)
+	h, err := freq.ComputeHessian(cmd.Context(), surf, x0, hopts)
 	if progress {
 		fmt.Fprint(os.Stderr, "\r\033[K")
 	}
