@@ -154,67 +154,9 @@ func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, out [
 		d1 = ws.d1
 	}
 	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens)
-	rho, grad, us, dsubs := bd.rho, bd.grad, bd.u, bd.dsub
-	// Per spin and point: a = w ∂e/∂ρ_s, b_k = w g_k.
-	coefA := make([][]float64, nspin)
-	coefB := make([][3][]float64, nspin)
-	for s := 0; s < nspin; s++ {
-		coefA[s] = make([]float64, np)
-		if gga {
-			for k := 0; k < 3; k++ {
-				coefB[s][k] = make([]float64, np)
-			}
-		}
-	}
-	e := make([]float64, np)
-	if nspin == 1 {
-		vrho := make([]float64, np)
-		var sigma, vsigma []float64
-		if gga {
-			sigma = make([]float64, np)
-			vsigma = make([]float64, np)
-			for pt := 0; pt < np; pt++ {
-				gx, gy, gz := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
-				sigma[pt] = gx*gx + gy*gy + gz*gz
-			}
-		}
-		p.fn.EvalUnpolarized(np, rho[0], sigma, e, vrho, vsigma)
-		for pt := 0; pt < np; pt++ {
-			coefA[0][pt] = w[pt] * vrho[pt]
-			if gga {
-				f := 2 * w[pt] * vsigma[pt]
-				for k := 0; k < 3; k++ {
-					coefB[0][k][pt] = f * grad[0][k][pt]
-				}
-			}
-		}
-	} else {
-		va, vb := make([]float64, np), make([]float64, np)
-		var saa, sab, sbb, vaa, vab, vbb []float64
-		if gga {
-			saa, sab, sbb = make([]float64, np), make([]float64, np), make([]float64, np)
-			vaa, vab, vbb = make([]float64, np), make([]float64, np), make([]float64, np)
-			for pt := 0; pt < np; pt++ {
-				ax, ay, az := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
-				bx, by, bz := grad[1][0][pt], grad[1][1][pt], grad[1][2][pt]
-				saa[pt] = ax*ax + ay*ay + az*az
-				sab[pt] = ax*bx + ay*by + az*bz
-				sbb[pt] = bx*bx + by*by + bz*bz
-			}
-		}
-		p.fn.EvalPolarized(np, rho[0], rho[1], saa, sab, sbb, e, va, vb, vaa, vab, vbb)
-		for pt := 0; pt < np; pt++ {
-			coefA[0][pt] = w[pt] * va[pt]
-			coefA[1][pt] = w[pt] * vb[pt]
-			if gga {
-				for k := 0; k < 3; k++ {
-					ga, gb := grad[0][k][pt], grad[1][k][pt]
-					coefB[0][k][pt] = w[pt] * (2*vaa[pt]*ga + vab[pt]*gb)
-					coefB[1][k][pt] = w[pt] * (2*vbb[pt]*gb + vab[pt]*ga)
-				}
-			}
-		}
-	}
+	us, dsubs := bd.u, bd.dsub
+	// Per spin and point: a = w ∂e/∂ρ_s, b_k = w ∂e/∂(∂_kρ_s).
+	_, coefA, coefB := p.potentialCoefficients(bd, w, np)
 
 	// Fixed-point derivatives per function: colSum[3c+j] accumulates
 	// Σ_p [∂_jφ_pc T_pc + Σ_k b_pk ∂_j∂_kφ_pc U_pc] over points and spins,

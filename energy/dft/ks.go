@@ -213,70 +213,23 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64) batchResult {
 		d1 = [3][]float64{ws.gx, ws.gy, ws.gz}
 	}
 	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens)
-	rho, grad := bd.rho, bd.grad
+	rho := bd.rho
 	phiM := mat.NewDense(np, m, ws.phi)
 	w := g.W[bt.Start:bt.End]
-	e := make([]float64, np)
+	e, coefA, coefB := p.potentialCoefficients(bd, w, np)
 	// zcoef[s] holds, per point, the coefficients of φ (index 0) and of
 	// ∇φ (1..3) in Z_pμ for spin s.
 	zcoef := make([][4][]float64, nspin)
 	for s := range zcoef {
-		for k := 0; k < 4; k++ {
-			if k == 0 || gga {
-				zcoef[s][k] = make([]float64, np)
-			}
+		zcoef[s][0] = coefA[s]
+		for pt := range coefA[s] {
+			coefA[s][pt] *= 0.5
 		}
-	}
-	if nspin == 1 {
-		vrho := make([]float64, np)
-		var sigma, vsigma []float64
 		if gga {
-			sigma = make([]float64, np)
-			vsigma = make([]float64, np)
-			for pt := 0; pt < np; pt++ {
-				gx, gy, gz := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
-				sigma[pt] = gx*gx + gy*gy + gz*gz
-			}
-		}
-		p.fn.EvalUnpolarized(np, rho[0], sigma, e, vrho, vsigma)
-		for pt := 0; pt < np; pt++ {
-			zcoef[0][0][pt] = w[pt] * 0.5 * vrho[pt]
-			if gga {
-				f := 2 * w[pt] * vsigma[pt]
-				zcoef[0][1][pt] = f * grad[0][0][pt]
-				zcoef[0][2][pt] = f * grad[0][1][pt]
-				zcoef[0][3][pt] = f * grad[0][2][pt]
-			}
+			zcoef[s][1], zcoef[s][2], zcoef[s][3] = coefB[s][0], coefB[s][1], coefB[s][2]
 		}
 		for pt := 0; pt < np; pt++ {
-			res.nel += w[pt] * rho[0][pt]
-		}
-	} else {
-		va, vb := make([]float64, np), make([]float64, np)
-		var saa, sab, sbb, vaa, vab, vbb []float64
-		if gga {
-			saa, sab, sbb = make([]float64, np), make([]float64, np), make([]float64, np)
-			vaa, vab, vbb = make([]float64, np), make([]float64, np), make([]float64, np)
-			for pt := 0; pt < np; pt++ {
-				ax, ay, az := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
-				bx, by, bz := grad[1][0][pt], grad[1][1][pt], grad[1][2][pt]
-				saa[pt] = ax*ax + ay*ay + az*az
-				sab[pt] = ax*bx + ay*by + az*bz
-				sbb[pt] = bx*bx + by*by + bz*bz
-			}
-		}
-		p.fn.EvalPolarized(np, rho[0], rho[1], saa, sab, sbb, e, va, vb, vaa, vab, vbb)
-		for pt := 0; pt < np; pt++ {
-			zcoef[0][0][pt] = w[pt] * 0.5 * va[pt]
-			zcoef[1][0][pt] = w[pt] * 0.5 * vb[pt]
-			if gga {
-				for k := 0; k < 3; k++ {
-					ga, gb := grad[0][k][pt], grad[1][k][pt]
-					zcoef[0][k+1][pt] = w[pt] * (2*vaa[pt]*ga + vab[pt]*gb)
-					zcoef[1][k+1][pt] = w[pt] * (2*vbb[pt]*gb + vab[pt]*ga)
-				}
-			}
-			res.nel += w[pt] * (rho[0][pt] + rho[1][pt])
+			res.nel += w[pt] * rho[s][pt]
 		}
 	}
 	for pt := 0; pt < np; pt++ {
@@ -457,4 +410,72 @@ func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, d
 		out.rho[s], out.grad[s], out.dsub[s], out.u[s] = r, gr, dsub, u
 	}
 	return out
+}
+
+// potentialCoefficients evaluates the functional at the points of a batch
+// and returns the energy density e and, per spin, a_s = w ∂e/∂ρ_s and (GGA)
+// the vector b_s = w ∂e/∂(∇ρ_s): 2 ∂e/∂σ ∇ρ for a total density,
+// 2 ∂e/∂σ_ss ∇ρ_s + ∂e/∂σ_αβ ∇ρ_s' for spin densities.
+func (p *Potential) potentialCoefficients(bd batchDensities, w []float64, np int) (e []float64, a [][]float64, b [][3][]float64) {
+	gga := p.fn.IsGGA()
+	rho, grad := bd.rho, bd.grad
+	nspin := len(rho)
+	e = make([]float64, np)
+	a = make([][]float64, nspin)
+	b = make([][3][]float64, nspin)
+	for s := 0; s < nspin; s++ {
+		a[s] = make([]float64, np)
+		if gga {
+			for k := 0; k < 3; k++ {
+				b[s][k] = make([]float64, np)
+			}
+		}
+	}
+	if nspin == 1 {
+		var sigma, vsigma []float64
+		if gga {
+			sigma = make([]float64, np)
+			vsigma = make([]float64, np)
+			for pt := 0; pt < np; pt++ {
+				gx, gy, gz := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
+				sigma[pt] = gx*gx + gy*gy + gz*gz
+			}
+		}
+		p.fn.EvalUnpolarized(np, rho[0], sigma, e, a[0], vsigma)
+		for pt := 0; pt < np; pt++ {
+			a[0][pt] *= w[pt]
+			if gga {
+				f := 2 * w[pt] * vsigma[pt]
+				for k := 0; k < 3; k++ {
+					b[0][k][pt] = f * grad[0][k][pt]
+				}
+			}
+		}
+		return e, a, b
+	}
+	var saa, sab, sbb, vaa, vab, vbb []float64
+	if gga {
+		saa, sab, sbb = make([]float64, np), make([]float64, np), make([]float64, np)
+		vaa, vab, vbb = make([]float64, np), make([]float64, np), make([]float64, np)
+		for pt := 0; pt < np; pt++ {
+			ax, ay, az := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
+			bx, by, bz := grad[1][0][pt], grad[1][1][pt], grad[1][2][pt]
+			saa[pt] = ax*ax + ay*ay + az*az
+			sab[pt] = ax*bx + ay*by + az*bz
+			sbb[pt] = bx*bx + by*by + bz*bz
+		}
+	}
+	p.fn.EvalPolarized(np, rho[0], rho[1], saa, sab, sbb, e, a[0], a[1], vaa, vab, vbb)
+	for pt := 0; pt < np; pt++ {
+		a[0][pt] *= w[pt]
+		a[1][pt] *= w[pt]
+		if gga {
+			for k := 0; k < 3; k++ {
+				ga, gb := grad[0][k][pt], grad[1][k][pt]
+				b[0][k][pt] = w[pt] * (2*vaa[pt]*ga + vab[pt]*gb)
+				b[1][k][pt] = w[pt] * (2*vbb[pt]*gb + vab[pt]*ga)
+			}
+		}
+	}
+	return e, a, b
 }
