@@ -28,6 +28,7 @@ type relaxReport struct {
 	File             string       `json:"file"`
 	Formula          string       `json:"formula"`
 	Method           string       `json:"method"`
+	LevelOfTheory    string       `json:"level_of_theory"`
 	Basis            string       `json:"basis"`
 	Charge           int          `json:"charge"`
 	Multiplicity     int          `json:"multiplicity"`
@@ -168,6 +169,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 		Method:     s.fn,
 		GridLevel:  s.gridLevel,
 		SCF:        opts,
+		Dispersion: s.dispersion,
 	})
 	if err != nil {
 		return err
@@ -184,7 +186,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 	var writeErr error
 	frame := s.mol.Clone()
 	if progress {
-		fmt.Fprintf(os.Stderr, "%s  %s/%s  relaxing to the %s level\n", s.mol.Formula(), strings.ToUpper(s.method), s.set.Name, strings.ToLower(f.converge))
+		fmt.Fprintf(os.Stderr, "%s  %s  relaxing to the %s level\n", s.mol.Formula(), s.label(), strings.ToLower(f.converge))
 		fmt.Fprintf(os.Stderr, "%5s  %18s  %10s  %12s  %10s\n", "step", "energy (Eh)", "change", "gradient", "step (Å)")
 	}
 	t0 := time.Now()
@@ -227,8 +229,8 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 				writeErr = err
 			}
 			if !st.Rejected {
-				if err := writeGeometry(geomPath, frame, fmt.Sprintf("%s  %s/%s  energy %.10f Eh  step %d  not yet converged",
-					s.mol.Formula(), strings.ToUpper(s.method), s.set.Name, st.EnergyHartree, st.Number)); err != nil && writeErr == nil {
+				if err := writeGeometry(geomPath, frame, fmt.Sprintf("%s  %s  energy %.10f Eh  step %d  not yet converged",
+					s.mol.Formula(), s.label(), st.EnergyHartree, st.Number)); err != nil && writeErr == nil {
 					writeErr = err
 				}
 			}
@@ -254,8 +256,8 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 	if !res.Converged {
 		status = "not converged"
 	}
-	if err := writeGeometry(geomPath, final, fmt.Sprintf("%s  %s/%s  energy %.10f Eh  %s (%s) after %d steps",
-		s.mol.Formula(), strings.ToUpper(s.method), s.set.Name, res.EnergyHartree, status, strings.ToLower(f.converge), res.Steps)); err != nil {
+	if err := writeGeometry(geomPath, final, fmt.Sprintf("%s  %s  energy %.10f Eh  %s (%s) after %d steps",
+		s.mol.Formula(), s.label(), res.EnergyHartree, status, strings.ToLower(f.converge), res.Steps)); err != nil {
 		return err
 	}
 	if writeErr != nil {
@@ -266,6 +268,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 		Formula:          s.mol.Formula(),
 		Method:           s.method,
 		Basis:            s.set.Name,
+		LevelOfTheory:    s.label(),
 		Charge:           s.mol.Charge,
 		Multiplicity:     s.mol.Multiplicity,
 		Convergence:      strings.ToLower(f.converge),
@@ -413,7 +416,7 @@ func sameFile(a, b string) bool {
 // printRelaxReport prints the outcome, the files and the closing table of
 // bond lengths and angles (start and final).
 func printRelaxReport(w io.Writer, rep *relaxReport, z []int, x0, x []float64, hold []optimize.Coordinate) error {
-	fmt.Fprintf(w, "%s  %s/%s  charge %d  multiplicity %d\n", rep.Formula, strings.ToUpper(rep.Method), rep.Basis, rep.Charge, rep.Multiplicity)
+	fmt.Fprintf(w, "%s  %s  charge %d  multiplicity %d\n", rep.Formula, rep.LevelOfTheory, rep.Charge, rep.Multiplicity)
 	status := fmt.Sprintf("converged (%s) in %d steps", rep.Convergence, rep.Steps)
 	if !rep.Converged {
 		status = fmt.Sprintf("NOT converged (%s) after %d steps", rep.Convergence, rep.Steps)
