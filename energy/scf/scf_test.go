@@ -145,6 +145,7 @@ func TestHartreeFockLimitAtoms(t *testing.T) {
 	for _, c := range cases {
 		res := run(t, mol(t, []atomSpec{{c.sym, 0, 0, 0}}, false, 0, 0), "cc-pvqz", basis.Default, Options{})
 		d := res.EnergyHartree - c.limit
+		t.Logf("%s cc-pVQZ: %.6f Eh, %.6f above the HF limit", c.sym, res.EnergyHartree, d)
 		if d < 0 || d > c.within {
 			t.Errorf("%s cc-pVQZ: E = %.6f, %.6f above the HF limit (want 0…%g)", c.sym, res.EnergyHartree, d, c.within)
 		}
@@ -211,6 +212,7 @@ func TestOxygenTriplet(t *testing.T) {
 	triplet := run(t, mol(t, o2, false, 0, 3), "6-31g*", basis.Default, Options{})
 	// The ground state of O2 is a triplet (common practice): UHF triplet
 	// below the RHF singlet, ⟨S²⟩ within 0.05 of S(S+1) = 2.
+	t.Logf("O2 6-31G*: UHF triplet %.6f Eh (⟨S²⟩ %.4f), RHF singlet %.6f Eh", triplet.EnergyHartree, triplet.S2, singlet.EnergyHartree)
 	if !(triplet.EnergyHartree < singlet.EnergyHartree) {
 		t.Errorf("UHF triplet %.8f not below RHF singlet %.8f", triplet.EnergyHartree, singlet.EnergyHartree)
 	}
