@@ -1,0 +1,682 @@
+package settle
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"poise/energy/basis"
+	"poise/energy/dispersion"
+	"poise/energy/molecule"
+	"poise/energy/scf"
+	"poise/energy/units"
+	"poise/energy/xc"
+	"poise/freq"
+	"poise/gradient"
+	"poise/optimize"
+	"poise/thermo"
+	"poise/thermo/pointgroup"
+)
+
+// Verdicts of a Summary.
+const (
+	VerdictMinimum    = "minimum"
+	VerdictNotMinimum = "not a minimum"
+)
+
+// DefaultMaxCycles is the default number of displace-and-relax cycles
+// after the first relaxation.
+const DefaultMaxCycles = 3
+
+// Noise thresholds for imaginary wavenumbers (cm⁻¹): an imaginary mode
+// smaller than this is taken for numerical noise of the finite-difference
+// Hessian (and, for DFT, of the integration grid), not for a saddle point
+// (common practice).
+const (
+	NoiseThresholdDFTCm1 = 50.0
+	NoiseThresholdHFCm1  = 20.0
+)
+
+// displaceMaxAtomBohr is the largest atomic displacement along an
+// imaginary mode before relaxing again (0.3 bohr ≈ 0.16 Å, common practice:
+// well past the region where the harmonic model is flat, well short of a
+// new structure).
+const displaceMaxAtomBohr = 0.3
+
+// Level is a level of theory with its SCF settings.
+type Level struct {
+	Basis      *basis.Set
+	Convention basis.Convention
+	// Method is the functional; nil means Hartree–Fock.
+	Method *xc.Functional
+	// GridLevel is the DFT grid level (0: grid.DefaultLevel).
+	GridLevel int
+	// Dispersion, when set, adds D3(BJ).
+	Dispersion *dispersion.Params
+	// SCF carries thresholds, iteration limit, unrestricted flag and
+	// resources (Threads, MemoryBytes). XC, Guess and Progress are ignored.
+	SCF scf.Options
+}
+
+func (l Level) methodName() string {
+	if l.Method == nil {
+		return "hf"
+	}
+	return l.Method.Name()
+}
+
+func (l Level) needsGrid() bool { return l.Method != nil && l.Method.NeedsGrid() }
+
+// Label is the level of theory as printed, e.g. "B3LYP-D3(BJ)/6-31G*".
+func (l Level) Label() string {
+	m := strings.ToUpper(l.methodName())
+	if l.Dispersion != nil {
+		m += "-D3(BJ)"
+	}
+	name := "?"
+	if l.Basis != nil {
+		name = l.Basis.Name
+	}
+	return m + "/" + name
+}
+
+// tag is everything about the level that changes the numbers.
+func (l Level) tag() string {
+	disp := "none"
+	if l.Dispersion != nil {
+		disp = fmt.Sprintf("d3bj(%+v)", *l.Dispersion)
+	}
+	grid := 0
+	if l.needsGrid() {
+		grid = l.GridLevel
+	}
+	name := ""
+	if l.Basis != nil {
+		name = l.Basis.Name
+	}
+	o := l.SCF
+	return fmt.Sprintf("method=%s basis=%s convention=%v grid=%d dispersion=%s unrestricted=%v etol=%g gtol=%g lindep=%g",
+		l.methodName(), name, l.Convention, grid, disp, o.Unrestricted, o.EnergyTolerance, o.GradientTolerance, o.LinearDependence)
+}
+
+// Options control Run. Start from DefaultOptions: zero values of
+// TemperatureK, PressurePa, ThresholdCm1 and StepBohr mean their defaults,
+// but MaxCycles 0 means no displacement cycle at all.
+type Options struct {
+	TemperatureK float64 // default 298.15 K
+	PressurePa   float64 // default 1 bar
+	// MaxCycles is the number of displace-and-relax cycles allowed after
+	// the first relaxation.
+	MaxCycles int
+	// ThresholdCm1 is the noise threshold for imaginary wavenumbers
+	// (magnitude, cm⁻¹); 0 means NoiseThresholdDFTCm1 for DFT and
+	// NoiseThresholdHFCm1 for Hartree–Fock.
+	ThresholdCm1 float64
+	// StepBohr is the finite-difference step of the Hessian (0:
+	// freq.DefaultStepBohr).
+	StepBohr float64
+	// MaxSteps bounds each relaxation (0: optimize.DefaultMaxSteps).
+	MaxSteps int
+	// Prerelax, if set, relaxes at this (cheaper) level first, to the
+	// "draft" criteria; only the geometry is carried over.
+	Prerelax *Level
+	// EnergyAt, if set, computes the final electronic energy at this level
+	// on the settled geometry; the thermal corrections stay those of the
+	// settle level.
+	EnergyAt *Level
+	// ProgramVersion is recorded in the Summary and in the Key.
+	ProgramVersion string
+	// Store, if set, is looked up before and filled after the
+	// calculation.
+	Store *Store
+	// NewSurface builds the surface of a level (nil: an SCF surface).
+	// Tests use it to count evaluations.
+	NewSurface func(mol *molecule.Molecule, lvl Level) (gradient.Surface, error)
+	// Log, if set, receives one line per stage.
+	Log func(string)
+}
+
+// DefaultOptions are 298.15 K, 1 bar and DefaultMaxCycles.
+func DefaultOptions() Options {
+	return Options{TemperatureK: thermo.DefaultTemperatureK, PressurePa: units.StandardPressurePa, MaxCycles: DefaultMaxCycles}
+}
+
+func (o Options) withDefaults(lvl Level) Options {
+	if o.TemperatureK == 0 {
+		o.TemperatureK = thermo.DefaultTemperatureK
+	}
+	if o.PressurePa == 0 {
+		o.PressurePa = units.StandardPressurePa
+	}
+	if o.ThresholdCm1 == 0 {
+		o.ThresholdCm1 = NoiseThresholdHFCm1
+		if lvl.needsGrid() {
+			o.ThresholdCm1 = NoiseThresholdDFTCm1
+		}
+	}
+	if o.StepBohr == 0 {
+		o.StepBohr = freq.DefaultStepBohr
+	}
+	if o.MaxSteps == 0 {
+		o.MaxSteps = optimize.DefaultMaxSteps
+	}
+	return o
+}
+
+// Summary is the outcome of a settle run. Its JSON keys are a contract of
+// the summary file.
+type Summary struct {
+	Verdict        string `json:"verdict"`
+	ImaginaryCount int    `json:"imaginary_count"`
+	// ImaginaryCm1 are the imaginary wavenumbers above the threshold, as
+	// negative numbers (most negative first).
+	ImaginaryCm1 []float64 `json:"imaginary_wavenumbers_cm1"`
+	ThresholdCm1 float64   `json:"imaginary_threshold_cm1"`
+	// EnergyHartree is the electronic energy: at EnergyLevel when given,
+	// else at the settle level (SettleEnergyHartree).
+	EnergyHartree       float64 `json:"energy_hartree"`
+	SettleEnergyHartree float64 `json:"settle_level_energy_hartree"`
+	ZPEHartree          float64 `json:"zero_point_energy_hartree"`
+	// EnthalpyHartree and GibbsHartree are absolute: EnergyHartree plus
+	// the thermal corrections of the settle level at TemperatureK and
+	// PressurePa.
+	EnthalpyHartree           float64  `json:"enthalpy_hartree"`
+	GibbsHartree              float64  `json:"gibbs_hartree"`
+	EnthalpyCorrectionHartree float64  `json:"enthalpy_correction_hartree"`
+	GibbsCorrectionHartree    float64  `json:"gibbs_correction_hartree"`
+	EntropyJPerMolK           float64  `json:"entropy_j_per_mol_k"`
+	CpJPerMolK                float64  `json:"heat_capacity_cp_j_per_mol_k"`
+	TemperatureK              float64  `json:"temperature_k"`
+	PressurePa                float64  `json:"pressure_pa"`
+	Formula                   string   `json:"formula"`
+	Charge                    int      `json:"charge"`
+	Multiplicity              int      `json:"multiplicity"`
+	Symbols                   []string `json:"symbols"`
+	// GeometryAngstrom is the settled geometry.
+	GeometryAngstrom [][3]float64 `json:"geometry_angstrom"`
+	MassesU          []float64    `json:"masses_u"`
+	// FrequenciesCm1 are all harmonic wavenumbers (imaginary negative),
+	// ascending, unscaled.
+	FrequenciesCm1 []float64 `json:"frequencies_cm1"`
+	PointGroup     string    `json:"point_group"`
+	SymmetryNumber int       `json:"symmetry_number"`
+	LevelOfTheory  string    `json:"level_of_theory"`
+	// EnergyLevel is the level of the final single point (empty: none).
+	EnergyLevel    string   `json:"energy_level_of_theory,omitempty"`
+	PrerelaxLevel  string   `json:"prerelax_level_of_theory,omitempty"`
+	Cycles         int      `json:"displacement_cycles"`
+	RelaxSteps     int      `json:"relaxation_steps"`
+	Evaluations    int      `json:"surface_evaluations"`
+	Warnings       []string `json:"warnings"`
+	ProgramVersion string   `json:"program_version"`
+	Key            string   `json:"store_key"`
+}
+
+// Minimum reports whether the structure is a confirmed minimum.
+func (s *Summary) Minimum() bool { return s.Verdict == VerdictMinimum }
+
+// ThermoInput is the input of package thermo for the settled structure
+// (electronic energy EnergyHartree), to recompute the thermochemistry at
+// other conditions.
+func (s *Summary) ThermoInput() thermo.Input {
+	in := thermo.Input{Multiplicity: s.Multiplicity, EnergyHartree: s.EnergyHartree, HasEnergy: true}
+	for i, sym := range s.Symbols {
+		g := s.GeometryAngstrom[i]
+		in.Atoms = append(in.Atoms, pointgroup.Atom{Label: sym, Mass: s.MassesU[i],
+			Position: [3]float64{g[0] * units.AngstromBohr, g[1] * units.AngstromBohr, g[2] * units.AngstromBohr}})
+	}
+	in.FrequenciesCm1 = append([]float64(nil), s.FrequenciesCm1...)
+	return in
+}
+
+// At evaluates the thermochemistry (plain rigid rotor and harmonic
+// oscillator, as in the Summary) at other conditions.
+func (s *Summary) At(c thermo.Conditions) (thermo.Properties, error) {
+	m, err := thermo.NewModel(s.ThermoInput(), thermo.Options{})
+	if err != nil {
+		return thermo.Properties{}, err
+	}
+	return m.Properties(c)
+}
+
+// Result is a Summary with the files behind it.
+type Result struct {
+	Summary *Summary `json:"summary"`
+	// Modes is the modes file of the settled geometry (the format of
+	// poise modes, readable by poise thermo).
+	Modes *freq.File `json:"modes"`
+	// TrajectoryXYZ holds every accepted geometry of every relaxation.
+	TrajectoryXYZ string `json:"trajectory_xyz"`
+	// Reused is true when the Result came from the store (no SCF at all).
+	Reused bool `json:"-"`
+}
+
+// Run settles mol at lvl. A structure that stays a saddle point is not an
+// error: its Summary says "not a minimum". Errors are failures (SCF or
+// relaxation not converging, cancelled context, bad input).
+func Run(ctx context.Context, mol *molecule.Molecule, lvl Level, opts Options) (*Result, error) {
+	if mol == nil || len(mol.Atoms) == 0 {
+		return nil, errors.New("settle: no atoms")
+	}
+	if lvl.Basis == nil {
+		return nil, errors.New("settle: no basis set")
+	}
+	if opts.MaxCycles < 0 {
+		return nil, fmt.Errorf("settle: %d displacement cycles: give 0 or more", opts.MaxCycles)
+	}
+	opts = opts.withDefaults(lvl)
+	mol = mol.Clone()
+	if err := mol.SetSpin(mol.Charge, mol.Multiplicity); err != nil {
+		return nil, fmt.Errorf("settle: %w", err)
+	}
+	key := Key(mol, lvl, opts)
+	if opts.Store != nil {
+		if r, ok := opts.Store.Get(key); ok {
+			r.Reused = true
+			return r, nil
+		}
+	}
+	r := &runner{mol: mol, lvl: lvl, opts: opts}
+	res, err := r.run(ctx)
+	if err != nil {
+		return nil, err
+	}
+	res.Summary.Key = key
+	if opts.Store != nil {
+		if err := opts.Store.Put(key, res); err != nil {
+			return res, fmt.Errorf("settle: storing the result: %w", err)
+		}
+	}
+	return res, nil
+}
+
+type runner struct {
+	mol   *molecule.Molecule
+	lvl   Level
+	opts  Options
+	traj  bytes.Buffer
+	evals int
+	steps int
+}
+
+func (r *runner) log(format string, a ...any) {
+	if r.opts.Log != nil {
+		r.opts.Log(fmt.Sprintf(format, a...))
+	}
+}
+
+func (r *runner) surface(l Level, tight bool) (gradient.Surface, error) {
+	if tight {
+		// Displaced gradients converged tighter than single energies: the
+		// differences amplify their noise by 1/2h.
+		l.SCF.GradientTolerance = freq.SCFGradientTolerance
+	}
+	if r.opts.NewSurface != nil {
+		return r.opts.NewSurface(r.mol, l)
+	}
+	o := l.SCF
+	o.XC, o.Guess, o.Progress = nil, nil, nil
+	return gradient.NewSCFSurface(r.mol, gradient.Config{Basis: l.Basis, Convention: l.Convention, Method: l.Method,
+		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion})
+}
+
+func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, crit string, what string) ([]float64, float64, error) {
+	c, err := optimize.Convergence(crit)
+	if err != nil {
+		return nil, 0, err
+	}
+	z := atomicNumbers(r.mol)
+	frame := r.mol.Clone()
+	before := s.Evaluations()
+	res, err := optimize.Relax(ctx, s, z, x, optimize.Options{Criteria: c, MaxSteps: r.opts.MaxSteps, Threads: r.lvl.SCF.Threads,
+		Progress: func(st optimize.Step) {
+			if st.Rejected {
+				return
+			}
+			setPositions(frame, st.XBohr)
+			_ = molecule.WriteXYZ(&r.traj, frame, fmt.Sprintf("%s step %d  energy %.10f Eh  largest gradient %.2e Eh/bohr",
+				what, st.Number, st.EnergyHartree, st.MaxGradient))
+		}})
+	r.evals += s.Evaluations() - before
+	if err != nil {
+		return nil, 0, fmt.Errorf("settle: %s: %w", what, err)
+	}
+	r.steps += res.Steps
+	r.log("%s: %d steps, energy %.10f Eh", what, res.Steps, res.EnergyHartree)
+	return res.XBohr, res.EnergyHartree, nil
+}
+
+// modes computes the Hessian at x and its harmonic analysis.
+func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64) (*freq.Hessian, *freq.Analysis, error) {
+	masses := massesOf(r.mol)
+	before := s.Evaluations()
+	h, err := freq.ComputeHessian(ctx, s, x, freq.HessianOptions{StepBohr: r.opts.StepBohr, Dipole: true,
+		Threads: r.lvl.SCF.Threads, Charge: float64(r.mol.Charge), MassesU: masses})
+	r.evals += s.Evaluations() - before
+	if err != nil {
+		return nil, nil, fmt.Errorf("settle: Hessian: %w", err)
+	}
+	an, err := freq.Analyze(freq.System{Z: atomicNumbers(r.mol), MassesU: masses, CoordsBohr: x,
+		HessianAU: h.HessianAU, DipoleDerivAU: h.DipoleDerivAU})
+	if err != nil {
+		return nil, nil, fmt.Errorf("settle: harmonic analysis: %w", err)
+	}
+	return h, an, nil
+}
+
+func (r *runner) imaginary(an *freq.Analysis) []freq.Mode {
+	var out []freq.Mode
+	for _, m := range an.Modes {
+		if m.WavenumberCm1 < -r.opts.ThresholdCm1 {
+			out = append(out, m)
+		}
+	}
+	return out
+}
+
+// displace moves x along each imaginary mode, both ways, keeping the
+// lower energy.
+func (r *runner) displace(ctx context.Context, s gradient.Surface, x []float64, modes []freq.Mode) ([]float64, error) {
+	x = append([]float64(nil), x...)
+	for _, m := range modes {
+		largest := 0.0
+		for a := 0; a < len(m.Displacement)/3; a++ {
+			d := m.Displacement[3*a : 3*a+3]
+			largest = math.Max(largest, math.Sqrt(d[0]*d[0]+d[1]*d[1]+d[2]*d[2]))
+		}
+		if largest == 0 {
+			continue
+		}
+		scale := displaceMaxAtomBohr / largest
+		best, bestE := []float64(nil), math.Inf(1)
+		for _, sign := range []float64{1, -1} {
+			y := make([]float64, len(x))
+			for i := range y {
+				y[i] = x[i] + sign*scale*m.Displacement[i]
+			}
+			var p gradient.Point
+			err := s.Evaluate(ctx, y, gradient.Request{}, &p)
+			r.evals++
+			if err != nil {
+				return nil, fmt.Errorf("settle: displaced point: %w", err)
+			}
+			if p.EnergyHartree < bestE {
+				best, bestE = y, p.EnergyHartree
+			}
+		}
+		r.log("displaced along %.1fi cm⁻¹: energy %.10f Eh", -m.WavenumberCm1, bestE)
+		x = best
+	}
+	return x, nil
+}
+
+func (r *runner) run(ctx context.Context) (*Result, error) {
+	x := gradient.Coordinates(r.mol)
+	sum := &Summary{Warnings: []string{}, ThresholdCm1: r.opts.ThresholdCm1, ProgramVersion: r.opts.ProgramVersion,
+		LevelOfTheory: r.lvl.Label(), TemperatureK: r.opts.TemperatureK, PressurePa: r.opts.PressurePa}
+	if p := r.opts.Prerelax; p != nil {
+		s, err := r.surface(*p, false)
+		if err != nil {
+			return nil, fmt.Errorf("settle: prerelax level: %w", err)
+		}
+		if x, _, err = r.relax(ctx, s, x, "draft", "prerelax "+p.Label()); err != nil {
+			return nil, err
+		}
+		sum.PrerelaxLevel = p.Label()
+	}
+	s, err := r.surface(r.lvl, true)
+	if err != nil {
+		return nil, fmt.Errorf("settle: %w", err)
+	}
+	var (
+		h    *freq.Hessian
+		an   *freq.Analysis
+		imag []freq.Mode
+	)
+	for cycle := 0; ; cycle++ {
+		what := "relaxation"
+		if cycle > 0 {
+			what = fmt.Sprintf("relaxation after displacement %d", cycle)
+		}
+		if x, _, err = r.relax(ctx, s, x, "strict", what); err != nil {
+			return nil, err
+		}
+		if h, an, err = r.modes(ctx, s, x); err != nil {
+			return nil, err
+		}
+		imag = r.imaginary(an)
+		sum.Cycles = cycle
+		if len(imag) == 0 || cycle >= r.opts.MaxCycles {
+			break
+		}
+		if x, err = r.displace(ctx, s, x, imag); err != nil {
+			return nil, err
+		}
+	}
+	final := r.mol.Clone()
+	setPositions(final, x)
+
+	masses := massesOf(final)
+	file := modesFile(final, r.lvl, h, an, r.opts.ProgramVersion)
+
+	sum.SettleEnergyHartree = h.EnergyHartree
+	sum.EnergyHartree = h.EnergyHartree
+	if e := r.opts.EnergyAt; e != nil {
+		es, err := r.surface(*e, false)
+		if err != nil {
+			return nil, fmt.Errorf("settle: energy level: %w", err)
+		}
+		var p gradient.Point
+		if err := es.Evaluate(ctx, x, gradient.Request{}, &p); err != nil {
+			return nil, fmt.Errorf("settle: single point at %s: %w", e.Label(), err)
+		}
+		r.evals++
+		sum.EnergyHartree = p.EnergyHartree
+		sum.EnergyLevel = e.Label()
+	}
+	sum.ImaginaryCount = len(imag)
+	sum.ImaginaryCm1 = []float64{}
+	for _, m := range imag {
+		sum.ImaginaryCm1 = append(sum.ImaginaryCm1, m.WavenumberCm1)
+	}
+	sum.Verdict = VerdictMinimum
+	if len(imag) > 0 {
+		sum.Verdict = VerdictNotMinimum
+	}
+	for _, m := range an.Modes {
+		sum.FrequenciesCm1 = append(sum.FrequenciesCm1, m.WavenumberCm1)
+		if m.WavenumberCm1 < 0 && m.WavenumberCm1 >= -r.opts.ThresholdCm1 {
+			sum.Warnings = append(sum.Warnings, fmt.Sprintf("imaginary mode of %.1fi cm⁻¹ taken for numerical noise (threshold %gi cm⁻¹); left out of the thermochemistry", -m.WavenumberCm1, r.opts.ThresholdCm1))
+		}
+	}
+	if sum.FrequenciesCm1 == nil {
+		sum.FrequenciesCm1 = []float64{}
+	}
+	sum.Formula = final.Formula()
+	sum.Charge, sum.Multiplicity = final.Charge, final.Multiplicity
+	for _, a := range final.Atoms {
+		sum.Symbols = append(sum.Symbols, a.Symbol)
+	}
+	sum.GeometryAngstrom = final.PositionsAngstrom()
+	sum.MassesU = masses
+	sum.RelaxSteps = r.steps
+	sum.Evaluations = r.evals
+
+	model, err := thermo.NewModel(sum.ThermoInput(), thermo.Options{})
+	if err != nil {
+		return nil, fmt.Errorf("settle: thermochemistry: %w", err)
+	}
+	props, err := model.Properties(thermo.Conditions{TemperatureK: r.opts.TemperatureK, PressurePa: r.opts.PressurePa})
+	if err != nil {
+		return nil, fmt.Errorf("settle: thermochemistry: %w", err)
+	}
+	sum.PointGroup, sum.SymmetryNumber = model.PointGroup.Symbol, model.SymmetryNumber
+	sum.ZPEHartree = props.ZeroPointEnergyHartree
+	sum.EnthalpyCorrectionHartree = props.EnthalpyHartree
+	sum.GibbsCorrectionHartree = props.GibbsHartree
+	sum.EnthalpyHartree = props.AbsoluteEnthalpyHartree
+	sum.GibbsHartree = props.AbsoluteGibbsHartree
+	sum.EntropyJPerMolK = props.EntropyJPerMolK
+	sum.CpJPerMolK = props.CpJPerMolK
+	if RotatableBonds(atomicNumbers(final), x) > 0 {
+		sum.Warnings = append(sum.Warnings, RotatableWarning)
+	}
+	return &Result{Summary: sum, Modes: file, TrajectoryXYZ: r.traj.String()}, nil
+}
+
+// RotatableWarning is the warning for molecules with rotatable bonds.
+const RotatableWarning = "the molecule has rotatable bonds: the minimum found is the one nearest the input, not necessarily the lowest conformer"
+
+// singleBondFactor: a bond longer than this fraction of the sum of the
+// covalent (single-bond) radii is taken for a single bond; double bonds
+// are some 10 % shorter than single ones (common practice).
+const singleBondFactor = 0.93
+
+// RotatableBonds counts single bonds between two non-terminal heavy atoms
+// (each with at least two heavy-atom neighbours) outside rings.
+func RotatableBonds(z []int, xBohr []float64) int {
+	bonds := optimize.Bonds(z, xBohr)
+	nat := len(z)
+	adj := make([][]int, nat)
+	for _, b := range bonds {
+		adj[b[0]] = append(adj[b[0]], b[1])
+		adj[b[1]] = append(adj[b[1]], b[0])
+	}
+	heavyDegree := func(a int) int {
+		n := 0
+		for _, b := range adj[a] {
+			if z[b] > 1 {
+				n++
+			}
+		}
+		return n
+	}
+	// connected reports whether a and b are joined without the bond a–b.
+	connected := func(a, b int) bool {
+		seen := make([]bool, nat)
+		stack := []int{a}
+		seen[a] = true
+		for len(stack) > 0 {
+			u := stack[len(stack)-1]
+			stack = stack[:len(stack)-1]
+			for _, v := range adj[u] {
+				if u == a && v == b {
+					continue
+				}
+				if v == b {
+					return true
+				}
+				if !seen[v] {
+					seen[v] = true
+					stack = append(stack, v)
+				}
+			}
+		}
+		return false
+	}
+	n := 0
+	for _, bd := range bonds {
+		i, j := bd[0], bd[1]
+		if z[i] <= 1 || z[j] <= 1 || heavyDegree(i) < 2 || heavyDegree(j) < 2 {
+			continue
+		}
+		d := 0.0
+		for k := 0; k < 3; k++ {
+			t := xBohr[3*i+k] - xBohr[3*j+k]
+			d += t * t
+		}
+		if math.Sqrt(d) < singleBondFactor*(optimize.CovalentRadiusBohr(z[i])+optimize.CovalentRadiusBohr(z[j])) {
+			continue
+		}
+		if connected(i, j) {
+			continue
+		}
+		n++
+	}
+	return n
+}
+
+// modesFile is the modes file (the format of poise modes) of the analysis.
+func modesFile(mol *molecule.Molecule, lvl Level, h *freq.Hessian, an *freq.Analysis, version string) *freq.File {
+	nat := len(mol.Atoms)
+	n := 3 * nat
+	conv := "cartesian"
+	if sh, err := lvl.Basis.Shells(mol, lvl.Convention); err == nil {
+		for _, s := range sh {
+			if s.L >= 2 {
+				if s.Pure {
+					conv = "spherical"
+				}
+				break
+			}
+		}
+	}
+	f := &freq.File{
+		Format: freq.FileFormat, FormatVersion: freq.FileFormatVersion, ProgramVersion: version,
+		Formula: mol.Formula(), Charge: mol.Charge, Multiplicity: mol.Multiplicity,
+		GeometryAngstrom: mol.PositionsAngstrom(), MassesU: massesOf(mol),
+		Level: &freq.Level{Method: lvl.methodName(), Basis: lvl.Basis.Name, AngularFunctions: conv,
+			Unrestricted: lvl.SCF.Unrestricted || mol.Multiplicity > 1},
+		StepBohr: h.StepBohr, FourPoint: h.FourPoint, GradientAU: h.GradientAU,
+		DipoleAU: &h.DipoleAU, Warnings: []string{},
+	}
+	if lvl.needsGrid() {
+		f.Level.GridLevel = lvl.GridLevel
+	}
+	if lvl.Dispersion != nil {
+		f.Level.Dispersion = "d3bj"
+	}
+	e := h.EnergyHartree
+	f.EnergyHartree = &e
+	for _, a := range mol.Atoms {
+		f.Symbols = append(f.Symbols, a.Symbol)
+	}
+	f.HessianAU = make([][]float64, n)
+	f.DipoleDerivAU = make([][]float64, n)
+	for i := 0; i < n; i++ {
+		f.HessianAU[i] = h.HessianAU[i*n : (i+1)*n]
+		if h.DipoleDerivAU != nil {
+			f.DipoleDerivAU[i] = h.DipoleDerivAU[3*i : 3*i+3]
+		}
+	}
+	if h.DipoleDerivAU == nil {
+		f.DipoleDerivAU = nil
+	}
+	if g, err := freq.InternalGradientNorm(h.CoordsBohr, h.GradientAU); err == nil {
+		f.GradientNormAU = g
+		f.Stationary = g <= freq.StationaryGradientAU
+	}
+	sc, err := freq.ChooseScaling("auto", f.Level.Method, f.Level.Basis)
+	if err != nil {
+		sc, _ = freq.ChooseScaling("none", "", "")
+	}
+	f.SetAnalysis(an, sc)
+	f.Computation = &freq.FileComputation{Displacements: h.Displacements, Computed: h.Computed, Reused: h.Reused,
+		Gradients: h.Evaluations, AsymmetryAU: h.AsymmetryAU, Threads: lvl.SCF.Threads}
+	return f
+}
+
+func atomicNumbers(m *molecule.Molecule) []int {
+	z := make([]int, len(m.Atoms))
+	for i, a := range m.Atoms {
+		z[i] = a.Z
+	}
+	return z
+}
+
+func massesOf(m *molecule.Molecule) []float64 {
+	v := make([]float64, len(m.Atoms))
+	for i, a := range m.Atoms {
+		v[i] = a.Mass
+	}
+	return v
+}
+
+func setPositions(m *molecule.Molecule, xBohr []float64) {
+	for i := range m.Atoms {
+		copy(m.Atoms[i].Position[:], xBohr[3*i:3*i+3])
+	}
+}
