@@ -39,6 +39,8 @@ func newRootCmd() *cobra.Command {
 		newThermoCmd(),
 		newDispersionCmd(),
 		newModesCmd(),
+		newReactionCmd(),
+		newSettleCmd(),
 	)
 	return root
 }
