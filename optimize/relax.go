@@ -65,6 +65,18 @@ type Options struct {
 	Cartesian bool
 	// Progress, if set, is called after every evaluated geometry.
 	Progress func(Step)
+	// InitialHessian, if set, replaces the model Hessian at the start when
+	// its internal coordinates are the ones this relaxation builds (same
+	// kinds on the same atoms, in the same order) — typically the updated
+	// Hessian of a relaxation of the same molecule at a cheaper level.
+	InitialHessian *InternalHessian
+}
+
+// InternalHessian is a Hessian in redundant internal coordinates
+// (Eh/bohr², Eh/(bohr·rad), Eh/rad²), row-major len(Coordinates)².
+type InternalHessian struct {
+	Coordinates []Coordinate
+	H           []float64
 }
 
 // Step describes one evaluated geometry of a relaxation.
@@ -123,6 +135,9 @@ type Result struct {
 	// Rebuilds counts the times the internal coordinates were rebuilt
 	// (an angle became linear, or the back-transformation failed).
 	Rebuilds int
+	// Hessian is the final (BFGS-updated) Hessian in internal coordinates;
+	// nil when the relaxation ended in Cartesian coordinates.
+	Hessian *InternalHessian
 }
 
 // OptionsError reports options that do not fit the molecule: a frozen atom
@@ -942,6 +957,12 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 		res.Evaluations = r.s.Evaluations() - start
 		res.Coordinates = r.coordsName()
 		res.Rebuilds = r.rebuilds
+		if !r.cart && len(r.prims) > 0 {
+			res.Hessian = &InternalHessian{
+				Coordinates: append([]Coordinate(nil), r.prims...),
+				H:           append([]float64(nil), r.h...),
+			}
+		}
 	}
 	dof := r.m - len(r.fixedSpace(x))
 	if dof <= 0 {
@@ -955,6 +976,8 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 		r.toCartesian(x)
 	} else if !r.build(x) {
 		r.toCartesian(x)
+	} else if ih := r.opt.InitialHessian; ih != nil && sameCoordinates(ih.Coordinates, r.prims) && len(ih.H) == len(r.h) {
+		copy(r.h, ih.H)
 	}
 	var lastDX []float64
 	lastDE := 0.0
@@ -1050,4 +1073,19 @@ func (r *relaxer) run(ctx context.Context, x0 []float64) (*Result, error) {
 			}
 		}
 	}
+}
+
+// sameCoordinates reports whether a and b are the same coordinates in the
+// same order (kinds and atoms; linear-bend axes are rebuilt from the
+// geometry and may differ).
+func sameCoordinates(a, b []Coordinate) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i].Kind != b[i].Kind || a[i].Atoms != b[i].Atoms {
+			return false
+		}
+	}
+	return true
 }

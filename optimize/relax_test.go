@@ -145,3 +145,35 @@ func TestEvaluationFailures(t *testing.T) {
 		}
 	}
 }
+
+// TestInitialHessianCarriesOver relaxes each model surface once, then
+// restarts from a new distortion with the first relaxation's updated
+// Hessian: the carried Hessian describes the surface better than the
+// model Hessian, so the second relaxation needs no more steps in total
+// over the cases (quasi-Newton practice), and each still reaches the
+// minimum.
+func TestInitialHessianCarriesOver(t *testing.T) {
+	report, _ := Convergence("report")
+	var plain, carried int
+	for _, mc := range modelCases() {
+		first, err := Relax(context.Background(), mc.surf(), mc.z, distort(mc.z, mc.ref, 0.2, 15), Options{Criteria: report, MaxSteps: 200})
+		if err != nil || first.Hessian == nil {
+			t.Fatalf("%s: first relaxation: %v (Hessian %v)", mc.name, err, first != nil && first.Hessian != nil)
+		}
+		x1 := distort(mc.z, mc.ref, 0.05, 5)
+		a, err := Relax(context.Background(), mc.surf(), mc.z, x1, Options{Criteria: report, MaxSteps: 200})
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := Relax(context.Background(), mc.surf(), mc.z, x1, Options{Criteria: report, MaxSteps: 200, InitialHessian: first.Hessian})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Logf("%s: %d steps with the model Hessian, %d with the carried one", mc.name, a.Steps, b.Steps)
+		plain += a.Steps
+		carried += b.Steps
+	}
+	if carried > plain {
+		t.Errorf("carried Hessians took %d steps in all, the model Hessian %d", carried, plain)
+	}
+}

@@ -323,15 +323,19 @@ func (r *runner) surface(l Level, tight bool) (gradient.Surface, error) {
 		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion})
 }
 
-func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, crit string, what string) ([]float64, float64, error) {
+// relax relaxes from x to the named criteria, starting from init's
+// Hessian when it fits (nil: the model Hessian), and returns the geometry,
+// the energy and the final internal-coordinate Hessian (nil if none).
+func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, crit string, what string, init *optimize.InternalHessian) ([]float64, float64, *optimize.InternalHessian, error) {
 	c, err := optimize.Convergence(crit)
 	if err != nil {
-		return nil, 0, err
+		return nil, 0, nil, err
 	}
 	z := atomicNumbers(r.mol)
 	frame := r.mol.Clone()
 	before := s.Evaluations()
 	res, err := optimize.Relax(ctx, s, z, x, optimize.Options{Criteria: c, MaxSteps: r.opts.MaxSteps, Threads: r.lvl.SCF.Threads,
+		InitialHessian: init,
 		Progress: func(st optimize.Step) {
 			if st.Rejected {
 				return
@@ -342,11 +346,11 @@ func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, cri
 		}})
 	r.evals += s.Evaluations() - before
 	if err != nil {
-		return nil, 0, fmt.Errorf("settle: %s: %w", what, err)
+		return nil, 0, nil, fmt.Errorf("settle: %s: %w", what, err)
 	}
 	r.steps += res.Steps
 	r.log("%s: %d steps, energy %.10f Eh", what, res.Steps, res.EnergyHartree)
-	return res.XBohr, res.EnergyHartree, nil
+	return res.XBohr, res.EnergyHartree, res.Hessian, nil
 }
 
 // modes computes the Hessian at x and its harmonic analysis.
@@ -417,12 +421,16 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 	x := gradient.Coordinates(r.mol)
 	sum := &Summary{Warnings: []string{}, ThresholdCm1: r.opts.ThresholdCm1, ProgramVersion: r.opts.ProgramVersion,
 		LevelOfTheory: r.lvl.Label(), TemperatureK: r.opts.TemperatureK, PressurePa: r.opts.PressurePa}
+	// The prerelaxation's updated Hessian starts the first relaxation at
+	// the requested level (same internal coordinates); later relaxations,
+	// after a displacement, start from the model Hessian.
+	var carried *optimize.InternalHessian
 	if p := r.opts.Prerelax; p != nil {
 		s, err := r.surface(*p, false)
 		if err != nil {
 			return nil, fmt.Errorf("settle: prerelax level: %w", err)
 		}
-		if x, _, err = r.relax(ctx, s, x, "draft", "prerelax "+p.Label()); err != nil {
+		if x, _, carried, err = r.relax(ctx, s, x, "draft", "prerelax "+p.Label(), nil); err != nil {
 			return nil, err
 		}
 		sum.PrerelaxLevel = p.Label()
@@ -441,7 +449,11 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 		if cycle > 0 {
 			what = fmt.Sprintf("relaxation after displacement %d", cycle)
 		}
-		if x, _, err = r.relax(ctx, s, x, "strict", what); err != nil {
+		init := carried
+		if cycle > 0 {
+			init = nil
+		}
+		if x, _, _, err = r.relax(ctx, s, x, "strict", what, init); err != nil {
 			return nil, err
 		}
 		if h, an, err = r.modes(ctx, s, x); err != nil {

@@ -62,7 +62,7 @@ and --pressure, and the verdict: "minimum confirmed: 0 imaginary modes" (exit st
 or "not a minimum: n imaginary modes (...)" (exit status 4).
 
 --prerelax METHOD/BASIS relaxes at a cheap level first (draft criteria) and carries the
-geometry over (the Hessian model of the relaxation starts afresh). --energy-at
+geometry and the relaxation's updated Hessian over to the requested level. --energy-at
 METHOD/BASIS computes the final electronic energy at that level on the settled geometry;
 enthalpy and Gibbs energy combine it with the thermal corrections of the settle level.
 
