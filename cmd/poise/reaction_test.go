@@ -167,34 +167,3 @@ func TestReactionCLI(t *testing.T) {
 		t.Errorf("text output:\n%s", out)
 	}
 }
-
-// TestHydrogenationB3LYP settles ethylene, hydrogen and ethane at
-// B3LYP/6-31G* from the demo structures and checks ΔH°(298.15 K) of
-// C2H4 + H2 → C2H6 against −136.3 kJ/mol, from the gas-phase enthalpies of
-// formation of ethane (−83.8 kJ/mol) and ethylene (+52.5 kJ/mol)
-// (NIST-JANAF / CODATA-style tables; from memory), within 25 kJ/mol: a
-// sanity band for the method (issue 8), not a fit. It takes minutes on two
-// cores, so it does not run with -short.
-func TestHydrogenationB3LYP(t *testing.T) {
-	if testing.Short() {
-		t.Skip("three B3LYP/6-31G* settles take minutes")
-	}
-	store := filepath.Join(t.TempDir(), "store")
-	rep := reactionJSON(t, "reaction", filepath.Join(demoDir, "hydrogenation.reaction"),
-		"--method", "b3lyp", "--basis", "6-31g*", "--store", store)
-	r := rep["reactions"].([]any)[0].(map[string]any)
-	dh := r["delta_h_kj_per_mol"].(float64)
-	const want = -83.8 - 52.5
-	t.Logf("ΔH°(298.15 K) = %.2f kJ/mol, ΔE = %.2f, ΔZPE = %.2f, ΔG = %.2f (reference ΔH° %.1f)",
-		dh, r["delta_e_kj_per_mol"].(float64), r["delta_zpe_kj_per_mol"].(float64), r["delta_g_kj_per_mol"].(float64), want)
-	if math.Abs(dh-want) > 25 {
-		t.Errorf("ΔH°(298.15 K) = %.1f kJ/mol, want %.1f ± 25", dh, want)
-	}
-	for _, s := range rep["species"].([]any) {
-		for _, c := range s.(map[string]any)["conformers"].([]any) {
-			if v := c.(map[string]any)["verdict"]; v != "minimum" {
-				t.Errorf("%s: verdict %v", s.(map[string]any)["name"], v)
-			}
-		}
-	}
-}
