@@ -6,25 +6,8 @@ import (
 	"strings"
 
 	"poise/energy/molecule"
-	"poise/energy/units"
+	"poise/optimize"
 )
-
-// covalentRadiusAngstrom holds covalent radii in Å for Z = 1..36 (B. Cordero,
-// V. Gómez, A. E. Platero-Prats, M. Revés, J. Echeverría, E. Cremades,
-// F. Barragán, S. Alvarez, Dalton Trans. 2008, 2832; sp3 carbon, low-spin
-// Mn, Fe, Co; from memory). Two atoms are bonded when their distance is
-// below bondFactor times the sum of their radii.
-var covalentRadiusAngstrom = [...]float64{0,
-	0.31, 0.28, // H He
-	1.28, 0.96, 0.84, 0.76, 0.71, 0.66, 0.57, 0.58, // Li–Ne
-	1.66, 1.41, 1.21, 1.11, 1.07, 1.05, 1.02, 1.06, // Na–Ar
-	2.03, 1.76, 1.70, 1.60, 1.53, 1.39, 1.39, 1.32, 1.26, 1.24, 1.32, 1.22, // K–Zn
-	1.22, 1.20, 1.19, 1.20, 1.20, 1.16, // Ga–Kr
-}
-
-// bondFactor scales the sum of covalent radii into the bonding cutoff
-// (common practice: 1.2–1.3).
-const bondFactor = 1.3
 
 // linearAngleDeg is the angle above which a bend a–b–c is treated as a
 // linear bend (two perpendicular components) and torsions through it are
@@ -63,13 +46,6 @@ type primitive struct {
 	label string
 	scale float64       // arc length per radian (bends, torsions); 1 for stretches
 	perp  [2][3]float64 // linear bends: the two bending directions
-}
-
-func radiusBohr(z int) float64 {
-	if z >= 1 && z < len(covalentRadiusAngstrom) {
-		return covalentRadiusAngstrom[z] * units.AngstromBohr
-	}
-	return 1.5 * units.AngstromBohr
 }
 
 func vsub(a, b [3]float64) [3]float64 { return [3]float64{a[0] - b[0], a[1] - b[1], a[2] - b[2]} }
@@ -134,7 +110,7 @@ func newInternalSet(z []int, x []float64) *internalSet {
 	}
 	for a := 0; a < nat; a++ {
 		for b := a + 1; b < nat; b++ {
-			if dist(a, b) < bondFactor*(radiusBohr(z[a])+radiusBohr(z[b])) {
+			if dist(a, b) < optimize.BondFactor*(optimize.CovalentRadiusBohr(z[a])+optimize.CovalentRadiusBohr(z[b])) {
 				bonded[a][b], bonded[b][a] = true, true
 			}
 		}

@@ -72,15 +72,22 @@ func (l Level) needsGrid() bool { return l.Method != nil && l.Method.NeedsGrid()
 
 // Label is the level of theory as printed, e.g. "B3LYP-D3(BJ)/6-31G*".
 func (l Level) Label() string {
-	m := strings.ToUpper(l.methodName())
-	if l.Dispersion != nil {
-		m += "-D3(BJ)"
-	}
 	name := "?"
 	if l.Basis != nil {
 		name = l.Basis.Name
 	}
-	return m + "/" + name
+	return LevelLabel(l.methodName(), name, l.Dispersion != nil)
+}
+
+// LevelLabel is the printed and stored form of a level of theory, e.g.
+// "B3LYP-D3(BJ)/6-31G*": the method in capitals, "-D3(BJ)" when the
+// dispersion correction is on, and the basis set's name.
+func LevelLabel(method, basisName string, d3bj bool) string {
+	m := strings.ToUpper(method)
+	if d3bj {
+		m += "-D3(BJ)"
+	}
+	return m + "/" + basisName
 }
 
 // tag is everything about the level that changes the numbers.

@@ -19,6 +19,7 @@ import (
 	"poise/energy/molecule"
 	"poise/energy/scf"
 	"poise/energy/xc"
+	"poise/settle"
 )
 
 // levelFlags are the level-of-theory and resource flags shared by every
@@ -95,11 +96,7 @@ type setup struct {
 // label is the level of theory as printed and stored, e.g.
 // "B3LYP-D3(BJ)/6-31G*".
 func (s *setup) label() string {
-	m := strings.ToUpper(s.method)
-	if s.dispersion != nil {
-		m += "-D3(BJ)"
-	}
-	return m + "/" + s.set.Name
+	return settle.LevelLabel(s.method, s.set.Name, s.dispersion != nil)
 }
 
 // dispersionEnergy returns the D3(BJ) correction for the molecule (zero

@@ -29,6 +29,7 @@ import (
 	"poise/energy/units"
 	"poise/freq"
 	"poise/gradient"
+	"poise/settle"
 )
 
 // modesFlags are the options of poise modes besides the level of theory.
@@ -682,9 +683,5 @@ func (plainTicks) Ticks(lo, hi float64) []plot.Tick {
 
 // levelLabel is the level of theory as printed, e.g. "B3LYP-D3(BJ)/6-31G*".
 func levelLabel(l *freq.Level) string {
-	m := strings.ToUpper(l.Method)
-	if l.Dispersion != "" {
-		m += "-D3(BJ)"
-	}
-	return m + "/" + l.Basis
+	return settle.LevelLabel(l.Method, l.Basis, l.Dispersion != "")
 }

@@ -7,7 +7,7 @@ import (
 
 // analyze fills the derived properties of a finished SCF: Mulliken charges,
 // the dipole moment about the centre of mass and ⟨S²⟩.
-func analyze(res *Result, mol *molecule.Molecule, b *integral.Basis, s, x []float64) {
+func analyze(res *Result, mol *molecule.Molecule, b *integral.Basis, s []float64) {
 	n := b.NBF
 	dt := res.Density[0]
 	if len(res.Density) == 2 {
@@ -77,5 +77,4 @@ func analyze(res *Result, mol *molecule.Molecule, b *integral.Basis, s, x []floa
 		}
 		res.S2 += float64(res.NumBeta) - sum
 	}
-	_ = x
 }

@@ -258,7 +258,7 @@ func Run(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell, opt 
 		for sp := 0; sp < nspin; sp++ {
 			fo := transform(x, n, m, use[sp])
 			if shift && it > 1 {
-				applyLevelShift(fo, m, x, s, dens[sp], n, levelShiftHartree, occupiedCount(occ[sp]))
+				applyLevelShift(fo, m, x, s, dens[sp], n, levelShiftHartree, len(occ[sp]))
 			}
 			vals, vecs, err := eigenSym(fo, m)
 			if err != nil {
@@ -283,7 +283,7 @@ func Run(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell, opt 
 	res.OrbitalEnergies = energies
 	res.Coefficients = coefs
 	res.Density = dens
-	analyze(res, mol, b, s, x)
+	analyze(res, mol, b, s)
 	res.Wall = time.Since(start)
 	if !res.Converged {
 		return res, fmt.Errorf("%w in %d iterations (last energy %.10f Eh, orbital gradient %.2e, energy change above %.0e Eh or gradient above %.0e)",
@@ -345,8 +345,6 @@ func occupations(unrestricted bool, na, nb int) [][]float64 {
 	}
 	return [][]float64{oa, ob}
 }
-
-func occupiedCount(o []float64) int { return len(o) }
 
 // adaptDensity converts a list of densities (one total or α and β) to the
 // layout of nspin channels.
