@@ -173,6 +173,8 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 	if err != nil {
 		return nil, err
 	}
+	// Temporary files of a run killed while writing a point.
+	st.removeTemporaries()
 
 	h := &Hessian{CoordsBohr: append([]float64(nil), x0...), StepBohr: step, FourPoint: opt.FourPoint}
 	evals := 0

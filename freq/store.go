@@ -180,6 +180,17 @@ func (s *store) clear() (int, error) {
 	return n, nil
 }
 
+// removeTemporaries removes the temporary files a killed write left.
+func (s *store) removeTemporaries() {
+	if s.dir == "" {
+		return
+	}
+	old, _ := filepath.Glob(filepath.Join(s.dir, ".tmp-*"))
+	for _, f := range old {
+		os.Remove(f)
+	}
+}
+
 // load reads a stored point; ok is false when it is missing or unusable.
 func (s *store) load(name string, n int, step float64, coord, steps int) (storedPoint, bool) {
 	var p storedPoint

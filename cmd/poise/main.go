@@ -41,6 +41,7 @@ func newRootCmd() *cobra.Command {
 		newModesCmd(),
 		newReactionCmd(),
 		newSettleCmd(),
+		newTaskCmd(),
 	)
 	return root
 }

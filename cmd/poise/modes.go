@@ -45,6 +45,9 @@ type modesFlags struct {
 	fourPoint  bool
 	concurrent int
 	fwhm       float64
+	plan       string
+	assemble   string
+	batch      batchFlags
 }
 
 // Animation and spectrum settings.
@@ -88,7 +91,12 @@ Isotopologues need no new gradients:
 the wavenumbers, a separate one for the zero-point energy (published per level; the
 output names the source of each); --scale 0.96 sets one factor for both; --scale none.
 Scaled and unscaled values are both shown; the JSON keeps frequencies_cm1 and
-zero_point_energy_hartree unscaled.`,
+zero_point_energy_hartree unscaled.
+
+On a cluster: --plan DIR computes the reference point and writes every displaced point as an
+independent task with a Slurm job-array script (DIR/submit.sbatch); after the array has run,
+--assemble DIR gives the usual output (in DIR unless --out), or lists the unfinished tasks
+with DIR/resubmit.sbatch for just those (exit status 5). 'poise task --help' tells more.`,
 		Args: cobra.MaximumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runModes(cmd, args, &lf, &f)
@@ -107,6 +115,9 @@ zero_point_energy_hartree unscaled.`,
 	fl.BoolVar(&f.fourPoint, "four-point", false, "fourth-order differences (±step, ±2·step; twice the gradients)")
 	fl.IntVar(&f.concurrent, "concurrent", 0, "displaced points computed at once, sharing --threads (default: one per thread)")
 	fl.Float64Var(&f.fwhm, "fwhm", defaultFWHMCm1, "Lorentzian full width at half maximum of the IR picture, cm⁻¹")
+	fl.StringVar(&f.plan, "plan", "", "compute the reference point, write every displaced point as a task into DIR for a batch system, with a Slurm job-array script; nothing else is computed")
+	fl.StringVar(&f.assemble, "assemble", "", "the modes of the plan in DIR once every task has finished (list the missing ones otherwise); output in DIR unless --out")
+	f.batch.register(cmd)
 	return cmd
 }
 
@@ -132,7 +143,33 @@ func runModes(cmd *cobra.Command, args []string, lf *levelFlags, f *modesFlags) 
 		outDir = f.out
 		stem   string
 	)
+	var plan *planFile
 	switch {
+	case f.plan != "" && (f.from != "" || f.assemble != ""):
+		return usageErr(errors.New("--plan takes a structure FILE.xyz; --from and --assemble do not apply"))
+	case f.plan != "" && len(args) == 1:
+		if !(f.step > 0) || f.step > 0.05 {
+			return usageErr(fmt.Errorf("--step %g: give a displacement in bohr between 0 and 0.05 (default %g)", f.step, freq.DefaultStepBohr))
+		}
+		return planModes(cmd, args[0], lf, f)
+	case f.plan != "":
+		return usageErr(errors.New("give the structure to plan: poise modes FILE.xyz --plan DIR"))
+	case f.assemble != "" && (f.from != "" || len(args) == 1):
+		return usageErr(errors.New("give either --assemble DIR, FILE.xyz or --from MODES.json"))
+	case f.assemble != "":
+		for _, name := range []string{"method", "basis", "charge", "multiplicity", "cartesian", "spherical", "unrestricted", "grid", "dispersion", "max-iterations", "step", "four-point"} {
+			if changed(name) {
+				return usageErr(fmt.Errorf("--%s does not apply with --assemble: the plan in %s fixes it", name, f.assemble))
+			}
+		}
+		var err error
+		if file, plan, err = assembleModes(cmd, f); err != nil {
+			return err
+		}
+		source, stem = plan.Source, modesStem(plan.Source)
+		if outDir == "" {
+			outDir = plan.dir
+		}
 	case f.from != "" && len(args) == 1:
 		return usageErr(errors.New("give either FILE.xyz or --from MODES.json, not both"))
 	case f.from != "":
@@ -274,12 +311,23 @@ func angularFunctions(s *setup) string {
 	return "cartesian"
 }
 
-// computeModes computes the Hessian of the structure in path and returns the
-// modes file before the analysis.
-func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags, outDir string) (*freq.File, *freq.Hessian, error) {
+// modesCalc is a prepared Hessian calculation: the level of theory, the
+// SCF surface and the options of freq.ComputeHessian.
+type modesCalc struct {
+	s      *setup
+	conv   string // "cartesian" or "spherical" d, f, ... functions
+	surf   *gradient.SCFSurface
+	x0     []float64
+	masses []float64
+	hopts  freq.HessianOptions
+}
+
+// prepareModes reads the structure in path at the level of lf and prepares
+// the Hessian calculation whose points are kept in work.
+func prepareModes(path string, lf *levelFlags, step float64, fourPoint bool, work string) (*modesCalc, error) {
 	s, err := lf.prepare(path)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	conv := angularFunctions(s)
 	// Displaced gradients converged tighter than single energies: the
@@ -288,22 +336,33 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 	surf, err := gradient.NewSCFSurface(s.mol, gradient.Config{Basis: s.set, Convention: s.conv, Method: s.fn,
 		GridLevel: s.gridLevel, SCF: s.opts, Dispersion: s.dispersion})
 	if err != nil {
-		return nil, nil, usageErr(fmt.Errorf("%s: %w", path, err))
+		return nil, usageErr(fmt.Errorf("%s: %w", path, err))
 	}
-	work := filepath.Join(outDir, "displacements")
-	x0 := gradient.Coordinates(s.mol)
 	masses := make([]float64, len(s.mol.Atoms))
 	for i, a := range s.mol.Atoms {
 		masses[i] = a.Mass
 	}
+	return &modesCalc{s: s, conv: conv, surf: surf, x0: gradient.Coordinates(s.mol), masses: masses,
+		hopts: freq.HessianOptions{
+			StepBohr: step, FourPoint: fourPoint, Dipole: true, Threads: lf.threads,
+			WorkDir: work, Tag: levelTag(s, conv),
+			Charge: float64(s.mol.Charge), MassesU: masses,
+		}}, nil
+}
+
+// computeModes computes the Hessian of the structure in path and returns the
+// modes file before the analysis.
+func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags, outDir string) (*freq.File, *freq.Hessian, error) {
+	work := filepath.Join(outDir, "displacements")
+	mc, err := prepareModes(path, lf, f.step, f.fourPoint, work)
+	if err != nil {
+		return nil, nil, err
+	}
 	stderr := cmd.ErrOrStderr()
 	progress := !f.asJSON && isTerminal(os.Stderr)
-	hopts := freq.HessianOptions{
-		StepBohr: f.step, FourPoint: f.fourPoint, Dipole: true,
-		Threads: lf.threads, Concurrent: f.concurrent,
-		WorkDir: work, Tag: levelTag(s, conv), DiscardStale: true,
-		Charge: float64(s.mol.Charge), MassesU: masses,
-	}
+	hopts := mc.hopts
+	hopts.Concurrent = f.concurrent
+	hopts.DiscardStale = true
 	if progress {
 		hopts.Progress = func(p freq.Progress) {
 			fmt.Fprintf(os.Stderr, "\r  displaced points %d/%d", p.Done, p.Total)
@@ -318,7 +377,7 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 		fmt.Fprintf(stderr, "poise: note: %s held %d points of another geometry or level of theory; they are replaced\n", work, old)
 	}
 	t0 := time.Now()
-	h, err := freq.ComputeHessian(cmd.Context(), surf, x0, hopts)
+	h, err := freq.ComputeHessian(cmd.Context(), mc.surf, mc.x0, hopts)
 	if progress {
 		fmt.Fprint(os.Stderr, "\r\033[K")
 	}
@@ -332,15 +391,24 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 		}
 		return nil, nil, fmt.Errorf("%s: %w", path, err)
 	}
-	wall := time.Since(t0)
+	concurrent := f.concurrent
+	if concurrent == 0 {
+		concurrent = min(lf.threads, h.Displacements)
+	}
+	file, err := mc.modesFile(path, h, lf.threads, concurrent, time.Since(t0))
+	return file, h, err
+}
 
+// modesFile is the modes file (before the analysis) of a computed Hessian.
+func (mc *modesCalc) modesFile(path string, h *freq.Hessian, threads, concurrent int, wall time.Duration) (*freq.File, error) {
+	s := mc.s
 	nat := len(s.mol.Atoms)
 	n := 3 * nat
 	file := &freq.File{
 		Format: freq.FileFormat, FormatVersion: freq.FileFormatVersion,
 		Formula: s.mol.Formula(), Charge: s.mol.Charge, Multiplicity: s.mol.Multiplicity,
-		GeometryAngstrom: s.mol.PositionsAngstrom(), MassesU: masses,
-		Level:    &freq.Level{Method: s.method, Basis: s.set.Name, AngularFunctions: conv, Unrestricted: s.opts.Unrestricted || s.mol.Multiplicity > 1},
+		GeometryAngstrom: s.mol.PositionsAngstrom(), MassesU: mc.masses,
+		Level:    &freq.Level{Method: s.method, Basis: s.set.Name, AngularFunctions: mc.conv, Unrestricted: s.opts.Unrestricted || s.mol.Multiplicity > 1},
 		StepBohr: h.StepBohr, FourPoint: h.FourPoint, GradientAU: h.GradientAU,
 		DipoleAU: &h.DipoleAU, Warnings: []string{},
 	}
@@ -361,9 +429,9 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 		file.HessianAU[i] = h.HessianAU[i*n : (i+1)*n]
 		file.DipoleDerivAU[i] = h.DipoleDerivAU[3*i : 3*i+3]
 	}
-	gnorm, err := freq.InternalGradientNorm(x0, h.GradientAU)
+	gnorm, err := freq.InternalGradientNorm(mc.x0, h.GradientAU)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	file.GradientNormAU = gnorm
 	file.Stationary = gnorm <= freq.StationaryGradientAU
@@ -377,19 +445,15 @@ func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags
 	for _, it := range h.SCFIterations {
 		sum += it
 	}
-	concurrent := f.concurrent
-	if concurrent == 0 {
-		concurrent = min(lf.threads, h.Displacements)
-	}
 	file.Computation = &freq.FileComputation{
 		Displacements: h.Displacements, Computed: h.Computed, Reused: h.Reused, Gradients: h.Evaluations,
 		ReferenceSCFIterations: h.ReferenceSCFIterations, AsymmetryAU: h.AsymmetryAU,
-		Threads: lf.threads, Concurrent: concurrent, WallSeconds: wall.Seconds(),
+		Threads: threads, Concurrent: concurrent, WallSeconds: wall.Seconds(),
 	}
 	if len(h.SCFIterations) > 0 {
 		file.Computation.MeanSCFIterations = float64(sum) / float64(len(h.SCFIterations))
 	}
-	return file, h, nil
+	return file, nil
 }
 
 // countDisplacements counts the saved displaced points in a work directory.

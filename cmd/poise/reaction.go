@@ -30,6 +30,9 @@ type reactionFlags struct {
 	pressureBar float64
 	storeDir    string
 	noStore     bool
+	plan        string
+	assemble    string
+	batch       batchFlags
 }
 
 func newReactionCmd() *cobra.Command {
@@ -62,9 +65,22 @@ settle'); the thermochemistry is then recomputed at --temperature and --pressure
 Charge and multiplicity come from the reaction file, not from flags. --out DIR writes
 the settle files of every structure to DIR/SPECIES (DIR/SPECIES-2, ... for conformers)
 and reaction.json. Exit status 4 when some structure is not a confirmed minimum (the
-results are printed anyway).`,
-		Args: exactArgs(1),
+results are printed anyway).
+
+On a cluster: --plan DIR writes one task per structure (its whole settle, results in
+DIR/store unless --store) with a Slurm job-array script; --assemble DIR then reports the
+reactions, or lists the unfinished tasks with a script for them (exit status 5).`,
+		Args: cobra.MaximumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if f.assemble != "" {
+				if len(args) > 0 {
+					return usageErr(errors.New("give either FILE or --assemble DIR, not both"))
+				}
+				return assembleReaction(cmd, &lf, &f)
+			}
+			if len(args) != 1 {
+				return usageErr(errors.New("give a reaction file (poise reaction FILE) or a plan (poise reaction --assemble DIR)"))
+			}
 			return runReaction(cmd, args[0], &lf, &f)
 		},
 	}
@@ -79,6 +95,9 @@ results are printed anyway).`,
 	fl.Float64Var(&f.pressureBar, "pressure", 1, "pressure in bar (K always refers to 1 bar)")
 	fl.StringVar(&f.storeDir, "store", "", "results store directory (default: $XDG_CACHE_HOME/poise or ~/.cache/poise)")
 	fl.BoolVar(&f.noStore, "no-store", false, "neither read nor write the results store")
+	fl.StringVar(&f.plan, "plan", "", "write one task per structure (its whole settle) into DIR for a batch system, with a Slurm job-array script; compute nothing else")
+	fl.StringVar(&f.assemble, "assemble", "", "report the reactions of the plan in DIR once every task has finished (list the missing ones otherwise)")
+	f.batch.register(cmd)
 	return cmd
 }
 
@@ -90,26 +109,34 @@ type reactionStructure struct {
 	setup   *setup
 }
 
-func runReaction(cmd *cobra.Command, path string, lf *levelFlags, f *reactionFlags) error {
+// reactionJob is a checked reaction file: its reactions, the structures
+// to settle (in file order: species, then conformers) and the settle
+// options with the results store.
+type reactionJob struct {
+	sys     *reaction.System
+	structs []reactionStructure
+	opts    settle.Options
+}
+
+// prepareReaction checks the flags and the whole reaction file (files,
+// spins, balance, basis coverage) before anything is computed.
+func prepareReaction(stderr io.Writer, path string, lf *levelFlags, f *reactionFlags) (*reactionJob, error) {
 	switch {
-	case cmd.Flags().Changed("charge") || cmd.Flags().Changed("multiplicity"):
-		return usageErr(errors.New("--charge and --multiplicity do not apply: give them per species in the reaction file (species NAME FILE.xyz charge Q multiplicity M)"))
 	case !(f.temperature > 0) || math.IsInf(f.temperature, 0):
-		return usageErr(fmt.Errorf("--temperature %g: give a positive temperature in K", f.temperature))
+		return nil, usageErr(fmt.Errorf("--temperature %g: give a positive temperature in K", f.temperature))
 	case !(f.pressureBar > 0) || math.IsInf(f.pressureBar, 0):
-		return usageErr(fmt.Errorf("--pressure %g: give a positive pressure in bar", f.pressureBar))
+		return nil, usageErr(fmt.Errorf("--pressure %g: give a positive pressure in bar", f.pressureBar))
 	case f.noStore && f.storeDir != "":
-		return usageErr(errors.New("--store and --no-store exclude each other: give one"))
+		return nil, usageErr(errors.New("--store and --no-store exclude each other: give one"))
 	}
-	// Check everything before computing anything.
 	sys, err := reaction.Load(path)
 	if err != nil {
-		return usageErr(err)
+		return nil, usageErr(err)
 	}
-	var structs []reactionStructure
+	job := &reactionJob{sys: sys}
 	for _, sp := range sys.Species {
 		if !usedSpecies(sys.Reactions, sp.Name) {
-			fmt.Fprintf(cmd.ErrOrStderr(), "poise: warning: %s:%d: species %q is in no reaction; it is not computed\n", path, sp.Line, sp.Name)
+			fmt.Fprintf(stderr, "poise: warning: %s:%d: species %q is in no reaction; it is not computed\n", path, sp.Line, sp.Name)
 			continue
 		}
 		for i, p := range sp.Paths {
@@ -117,28 +144,58 @@ func runReaction(cmd *cobra.Command, path string, lf *levelFlags, f *reactionFla
 			l.charge, l.multiplicity = sp.Charge, sp.Multiplicity
 			s, err := l.prepare(p)
 			if err != nil {
-				return fmt.Errorf("%s:%d: species %q: %w", path, sp.Line, sp.Name, err)
+				return nil, fmt.Errorf("%s:%d: species %q: %w", path, sp.Line, sp.Name, err)
 			}
 			dir := sp.Name
 			if i > 0 {
 				dir = fmt.Sprintf("%s-%d", sp.Name, i+1)
 			}
-			structs = append(structs, reactionStructure{species: sp.Name, file: sp.Files[i], dir: dir, setup: s})
+			job.structs = append(job.structs, reactionStructure{species: sp.Name, file: sp.Files[i], dir: dir, setup: s})
 		}
 	}
-	opts := settle.DefaultOptions()
-	opts.ProgramVersion = version
+	job.opts = settle.DefaultOptions()
+	job.opts.ProgramVersion = version
 	if !f.noStore {
 		dir := f.storeDir
 		if dir == "" {
 			if dir, err = settle.DefaultStoreDir(); err != nil {
-				return usageErr(fmt.Errorf("%w; give --store DIR or --no-store", err))
+				return nil, usageErr(fmt.Errorf("%w; give --store DIR or --no-store", err))
 			}
 		}
-		if opts.Store, err = settle.OpenStore(dir); err != nil {
-			return usageErr(fmt.Errorf("--store: %w", err))
+		if job.opts.Store, err = settle.OpenStore(dir); err != nil {
+			return nil, usageErr(fmt.Errorf("--store: %w", err))
 		}
 	}
+	return job, nil
+}
+
+// checkReactionFlags refuses the flags that a reaction file sets per
+// species.
+func checkReactionFlags(cmd *cobra.Command) error {
+	if cmd.Flags().Changed("charge") || cmd.Flags().Changed("multiplicity") {
+		return usageErr(errors.New("--charge and --multiplicity do not apply: give them per species in the reaction file (species NAME FILE.xyz charge Q multiplicity M)"))
+	}
+	return nil
+}
+
+func runReaction(cmd *cobra.Command, path string, lf *levelFlags, f *reactionFlags) error {
+	if err := checkReactionFlags(cmd); err != nil {
+		return err
+	}
+	if f.plan != "" {
+		return planReaction(cmd, path, lf, f)
+	}
+	job, err := prepareReaction(cmd.ErrOrStderr(), path, lf, f)
+	if err != nil {
+		return err
+	}
+	return evaluateReaction(cmd, path, lf, f, job)
+}
+
+// evaluateReaction settles every structure of job (or finds it in the
+// store) and reports the reactions.
+func evaluateReaction(cmd *cobra.Command, path string, lf *levelFlags, f *reactionFlags, job *reactionJob) error {
+	sys, structs, opts := job.sys, job.structs, job.opts
 	if f.out != "" {
 		if err := os.MkdirAll(f.out, 0o755); err != nil {
 			return usageErr(fmt.Errorf("--out: %w", err))

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -314,6 +315,8 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 	case errors.Is(relaxErr, scf.ErrNotConverged):
 		return convergeErr(fmt.Errorf("%w; the last accepted geometry is in %s\n  continue from it with:\n    %s --max-iterations %d",
 			relaxErr, geomPath, again, 2*s.opts.MaxIterations))
+	case errors.Is(relaxErr, context.Canceled):
+		return fmt.Errorf("interrupted (%w); the last accepted geometry is in %s\n  continue from it with:\n    %s", relaxErr, geomPath, again)
 	}
 	return fmt.Errorf("%w; the last accepted geometry is in %s", relaxErr, geomPath)
 }
