@@ -144,6 +144,11 @@ type Options struct {
 	NewSurface func(mol *molecule.Molecule, lvl Level) (gradient.Surface, error)
 	// Log, if set, receives one line per stage.
 	Log func(string)
+	// WorkDir, if set, keeps every finished relaxation step and displaced
+	// point, so that a run stopped at any moment continues there when
+	// started again with the same inputs (see work.go). The caller removes
+	// it (RemoveWork) once the result is safe.
+	WorkDir string
 }
 
 // DefaultOptions are 298.15 K, 1 bar and DefaultMaxCycles.
@@ -286,7 +291,14 @@ func Run(ctx context.Context, mol *molecule.Molecule, lvl Level, opts Options) (
 			return r, nil
 		}
 	}
-	r := &runner{mol: mol, lvl: lvl, opts: opts}
+	w, resumed, err := openWork(opts.WorkDir, key)
+	if err != nil {
+		return nil, err
+	}
+	r := &runner{mol: mol, lvl: lvl, opts: opts, work: w}
+	if resumed {
+		r.log("continuing from the finished work in %s", opts.WorkDir)
+	}
 	res, err := r.run(ctx)
 	if err != nil {
 		return nil, err
@@ -304,6 +316,7 @@ type runner struct {
 	mol   *molecule.Molecule
 	lvl   Level
 	opts  Options
+	work  *work
 	traj  bytes.Buffer
 	evals int
 	steps int
@@ -333,39 +346,74 @@ func (r *runner) surface(l Level, tight bool) (gradient.Surface, error) {
 // relax relaxes from x to the named criteria, starting from init's
 // Hessian when it fits (nil: the model Hessian), and returns the geometry,
 // the energy and the final internal-coordinate Hessian (nil if none).
-func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, crit string, what string, init *optimize.InternalHessian) ([]float64, float64, *optimize.InternalHessian, error) {
+// With a work directory, every accepted step is saved under stage, and a
+// relaxation finished or begun by an earlier run is taken up from there.
+func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, crit string, what, stage string, init *optimize.InternalHessian) ([]float64, float64, *optimize.InternalHessian, error) {
 	c, err := optimize.Convergence(crit)
 	if err != nil {
 		return nil, 0, nil, err
 	}
+	var (
+		stageTraj  bytes.Buffer
+		prevSteps  int
+		prevEvals  int
+		resumeStep bool
+	)
+	if ck, ok := r.work.load(stage, len(x)); ok {
+		if ck.Done {
+			r.traj.WriteString(ck.Trajectory)
+			r.steps += ck.Steps
+			r.evals += ck.Evaluations
+			r.log("%s: finished by an earlier run (%d steps), energy %.10f Eh", what, ck.Steps, ck.EnergyHartree)
+			return ck.CoordsBohr, ck.EnergyHartree, ck.Hessian, nil
+		}
+		x, prevSteps, prevEvals, resumeStep = ck.CoordsBohr, ck.Steps, ck.Evaluations, true
+		stageTraj.WriteString(ck.Trajectory)
+		r.log("%s: continuing from step %d of an earlier run", what, ck.Steps)
+	}
 	z := atomicNumbers(r.mol)
 	frame := r.mol.Clone()
 	before := s.Evaluations()
+	var saveErr error
 	res, err := optimize.Relax(ctx, s, z, x, optimize.Options{Criteria: c, MaxSteps: r.opts.MaxSteps, Threads: r.lvl.SCF.Threads,
 		InitialHessian: init,
 		Progress: func(st optimize.Step) {
-			if st.Rejected {
-				return
+			if st.Rejected || (resumeStep && st.Number == 0) {
+				return // the starting point of a resumed relaxation is already recorded
 			}
 			setPositions(frame, st.XBohr)
-			_ = molecule.WriteXYZ(&r.traj, frame, fmt.Sprintf("%s step %d  energy %.10f Eh  largest gradient %.2e Eh/bohr",
-				what, st.Number, st.EnergyHartree, st.MaxGradient))
+			_ = molecule.WriteXYZ(&stageTraj, frame, fmt.Sprintf("%s step %d  energy %.10f Eh  largest gradient %.2e Eh/bohr",
+				what, prevSteps+st.Number, st.EnergyHartree, st.MaxGradient))
+			if err := r.work.save(&workStage{Stage: stage, CoordsBohr: append([]float64(nil), st.XBohr...), EnergyHartree: st.EnergyHartree,
+				Steps: prevSteps + st.Number, Evaluations: prevEvals + s.Evaluations() - before, Trajectory: stageTraj.String()}); err != nil && saveErr == nil {
+				saveErr = err
+			}
 		}})
-	r.evals += s.Evaluations() - before
+	r.evals += s.Evaluations() - before + prevEvals
+	r.traj.Write(stageTraj.Bytes())
 	if err != nil {
 		return nil, 0, nil, fmt.Errorf("settle: %s: %w", what, err)
 	}
-	r.steps += res.Steps
-	r.log("%s: %d steps, energy %.10f Eh", what, res.Steps, res.EnergyHartree)
+	if saveErr != nil {
+		return nil, 0, nil, saveErr
+	}
+	steps := prevSteps + res.Steps
+	r.steps += steps
+	r.log("%s: %d steps, energy %.10f Eh", what, steps, res.EnergyHartree)
+	if err := r.work.save(&workStage{Stage: stage, Done: true, CoordsBohr: res.XBohr, EnergyHartree: res.EnergyHartree, Steps: steps,
+		Evaluations: prevEvals + s.Evaluations() - before, Trajectory: stageTraj.String(), Hessian: res.Hessian}); err != nil {
+		return nil, 0, nil, err
+	}
 	return res.XBohr, res.EnergyHartree, res.Hessian, nil
 }
 
 // modes computes the Hessian at x and its harmonic analysis.
-func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64) (*freq.Hessian, *freq.Analysis, error) {
+func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64, cycle int) (*freq.Hessian, *freq.Analysis, error) {
 	masses := massesOf(r.mol)
 	before := s.Evaluations()
 	h, err := freq.ComputeHessian(ctx, s, x, freq.HessianOptions{StepBohr: r.opts.StepBohr, Dipole: true,
-		Threads: r.lvl.SCF.Threads, Charge: float64(r.mol.Charge), MassesU: masses})
+		Threads: r.lvl.SCF.Threads, Charge: float64(r.mol.Charge), MassesU: masses,
+		WorkDir: r.work.hessianDir(cycle), Tag: "settle " + r.lvl.tag(), DiscardStale: true})
 	r.evals += s.Evaluations() - before
 	if err != nil {
 		return nil, nil, fmt.Errorf("settle: Hessian: %w", err)
@@ -437,7 +485,7 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 		if err != nil {
 			return nil, fmt.Errorf("settle: prerelax level: %w", err)
 		}
-		if x, _, carried, err = r.relax(ctx, s, x, "draft", "prerelax "+p.Label(), nil); err != nil {
+		if x, _, carried, err = r.relax(ctx, s, x, "draft", "prerelax "+p.Label(), "prerelax", nil); err != nil {
 			return nil, err
 		}
 		sum.PrerelaxLevel = p.Label()
@@ -460,10 +508,10 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 		if cycle > 0 {
 			init = nil
 		}
-		if x, _, _, err = r.relax(ctx, s, x, "strict", what, init); err != nil {
+		if x, _, _, err = r.relax(ctx, s, x, "strict", what, fmt.Sprint(cycle), init); err != nil {
 			return nil, err
 		}
-		if h, an, err = r.modes(ctx, s, x); err != nil {
+		if h, an, err = r.modes(ctx, s, x, cycle); err != nil {
 			return nil, err
 		}
 		imag = r.imaginary(an)
@@ -543,7 +591,36 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 	if RotatableBonds(atomicNumbers(final), x) > 0 {
 		sum.Warnings = append(sum.Warnings, RotatableWarning)
 	}
+	if w := StabilityWarning(atomicNumbers(final), x, final.Multiplicity, r.lvl.SCF.Unrestricted); w != "" {
+		sum.Warnings = append(sum.Warnings, w)
+	}
 	return &Result{Summary: sum, Modes: file, TrajectoryXYZ: r.traj.String()}, nil
+}
+
+// StabilityWarning returns a warning for a restricted closed-shell singlet
+// whose wavefunction is of a kind that is often unstable towards an
+// unrestricted solution and was not checked (settle does not run the
+// stability check): one with a stretched bond, a bonded pair (optimize.Bonds)
+// between 1.3 and 1.8 times the sum of the covalent radii (common practice;
+// longer links are taken for van der Waals contacts between fragments).
+// It returns "" when there is nothing to warn about.
+func StabilityWarning(z []int, xBohr []float64, multiplicity int, unrestricted bool) string {
+	if multiplicity != 1 || unrestricted {
+		return ""
+	}
+	for _, b := range optimize.Bonds(z, xBohr) {
+		i, j := b[0], b[1]
+		var d2 float64
+		for k := 0; k < 3; k++ {
+			d := xBohr[3*i+k] - xBohr[3*j+k]
+			d2 += d * d
+		}
+		ratio := math.Sqrt(d2) / (optimize.CovalentRadiusBohr(z[i]) + optimize.CovalentRadiusBohr(z[j]))
+		if ratio > optimize.BondFactor && ratio <= 1.8 {
+			return fmt.Sprintf("the closed-shell singlet has a stretched bond (atoms %d–%d at %.2f× the sum of covalent radii) and its wavefunction was not checked for a restricted → unrestricted instability: check it with 'poise energy --stability check' at the final geometry", i+1, j+1, ratio)
+		}
+	}
+	return ""
 }
 
 // RotatableWarning is the warning for molecules with rotatable bonds.

@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"poise/freq"
+	"poise/settle"
 )
 
 // savedPoint is a finished displacement file as found on disk.
@@ -118,3 +119,75 @@ func TestModesKilledAndResumed(t *testing.T) {
 }
 
 func jsonUnmarshal(data []byte, v any) error { return json.Unmarshal(data, v) }
+
+// poise settle (water, HF/3-21G) killed with kill -9 or SIGINT at random
+// moments, resumed each time, ends with the uninterrupted result (energy
+// to 1e-7 Eh: a resumed relaxation takes another path within the strict
+// criteria), keeps no work directory once finished, and leaves no partial
+// file.
+func TestSettleKilledAndResumed(t *testing.T) {
+	if testing.Short() {
+		t.Skip("interrupted settles")
+	}
+	level := []string{"--method", "hf", "--basis", "3-21g", "--threads", "2", "--no-store"}
+	plainOut := t.TempDir()
+	t0 := time.Now()
+	if msg, err := poiseProcess(t, append([]string{"settle", modesWaterXYZ, "--out", plainOut}, level...)...).CombinedOutput(); err != nil {
+		t.Fatalf("%v\n%s", err, msg)
+	}
+	full := time.Since(t0)
+	want := readSummary(t, filepath.Join(plainOut, "summary.json"))
+
+	out := filepath.Join(t.TempDir(), "settle")
+	args := append([]string{"settle", modesWaterXYZ, "--out", out}, level...)
+	rng := rand.New(rand.NewPCG(12, 2026))
+	resumedMessage := false
+	for k := 0; k < 8; k++ {
+		p := poiseProcess(t, args...)
+		var stderr bytes.Buffer
+		p.Stderr = &stderr
+		if err := p.Start(); err != nil {
+			t.Fatal(err)
+		}
+		time.Sleep(time.Duration((0.1 + 0.5*rng.Float64()) * float64(full)))
+		sig := syscall.SIGKILL
+		if k%2 == 1 {
+			sig = syscall.SIGINT
+		}
+		p.Process.Signal(sig)
+		p.Wait()
+		if sig == syscall.SIGINT && strings.Contains(stderr.String(), "run the same command again to continue") {
+			resumedMessage = true
+		}
+	}
+	if !resumedMessage {
+		t.Error("no interrupted settle said how to continue")
+	}
+	if msg, err := poiseProcess(t, args...).CombinedOutput(); err != nil {
+		t.Fatalf("final run: %v\n%s", err, msg)
+	}
+	got := readSummary(t, filepath.Join(out, "summary.json"))
+	if got.Verdict != want.Verdict || math.Abs(got.EnergyHartree-want.EnergyHartree) > 1e-7 {
+		t.Errorf("after interruptions: %s, %.10f Eh; uninterrupted %s, %.10f Eh", got.Verdict, got.EnergyHartree, want.Verdict, want.EnergyHartree)
+	}
+	if _, err := os.Stat(filepath.Join(out, "work")); !os.IsNotExist(err) {
+		t.Errorf("work directory left after a finished settle: %v", err)
+	}
+	left, _ := filepath.Glob(filepath.Join(out, ".tmp-*"))
+	if len(left) > 0 {
+		t.Errorf("partial files left: %v", left)
+	}
+}
+
+func readSummary(t *testing.T, path string) *settle.Summary {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var s settle.Summary
+	if err := json.Unmarshal(data, &s); err != nil {
+		t.Fatal(err)
+	}
+	return &s
+}

@@ -280,6 +280,13 @@ func planReactionJob(p *planFile, threads int, stderr io.Writer) (*reactionJob, 
 	return prepareReaction(stderr, p.path(p.Input), p.Level.flags(threads), f)
 }
 
+// settleWorkDir is where a settle run keeps its finished work until its
+// result is stored: beside the store's entries, under its key, so that
+// any later run of the same structure and level continues from it.
+func settleWorkDir(st *settle.Store, s *setup, opts settle.Options) string {
+	return filepath.Join(st.Dir(), "work", settleKey(s, opts))
+}
+
 // settleKey is the store key of settling s with opts.
 func settleKey(s *setup, opts settle.Options) string {
 	return settle.Key(s.mol, settleLevel(s), opts)
@@ -382,10 +389,12 @@ func runReactionTask(ctx context.Context, p *planFile, t planTask, threads int, 
 	}
 	opts := job.opts
 	opts.Log = func(line string) { fmt.Fprintf(log, "  %s: %s\n", t.Species, line) }
+	opts.WorkDir = settleWorkDir(opts.Store, s.setup, opts)
 	res, err := settle.Run(ctx, s.setup.mol, settleLevel(s.setup), opts)
 	if err != nil {
 		return false, err
 	}
+	settle.RemoveWork(opts.WorkDir)
 	if !res.Summary.Minimum() {
 		fmt.Fprintf(log, "poise: warning: %s (%s): %s\n", s.species, s.file, verdictLine(res.Summary))
 	}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -215,10 +216,18 @@ func evaluateReaction(cmd *cobra.Command, path string, lf *levelFlags, f *reacti
 			fmt.Fprintf(os.Stderr, "settling %s (%s)\n", st.species, st.file)
 			opts.Log = func(line string) { fmt.Fprintf(os.Stderr, "  %s\n", line) }
 		}
+		if opts.Store != nil {
+			opts.WorkDir = settleWorkDir(opts.Store, st.setup, opts)
+		}
 		res, err := settle.Run(cmd.Context(), st.setup.mol, lvl, opts)
+		if err == nil {
+			settle.RemoveWork(opts.WorkDir)
+		}
 		if err != nil {
 			var optErr *optimize.OptionsError
 			switch {
+			case errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded):
+				return fmt.Errorf("interrupted (%w); finished work is kept in %s: run the same command again to continue", err, opts.WorkDir)
 			case errors.As(err, &optErr):
 				return usageErr(err)
 			case errors.Is(err, scf.ErrNotConverged):

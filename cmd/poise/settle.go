@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -205,10 +206,15 @@ func runSettle(cmd *cobra.Command, path string, lf *levelFlags, f *settleFlags) 
 		opts.Log = func(line string) { fmt.Fprintf(os.Stderr, "  %s\n", line) }
 	}
 
+	// Finished relaxation steps and displaced points are kept here until
+	// the output is written, so that an interrupted run continues.
+	opts.WorkDir = filepath.Join(outDir, "work")
 	res, err := settle.Run(cmd.Context(), s.mol, settleLevel(s), opts)
 	if err != nil {
 		var optErr *optimize.OptionsError
 		switch {
+		case errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded):
+			return fmt.Errorf("interrupted (%w); finished work is kept in %s: run the same command again to continue", err, opts.WorkDir)
 		case errors.As(err, &optErr):
 			return usageErr(err)
 		case errors.Is(err, scf.ErrNotConverged):
@@ -225,6 +231,9 @@ func runSettle(cmd *cobra.Command, path string, lf *levelFlags, f *settleFlags) 
 	sum := res.Summary
 	if err := writeSettleFiles(files, s.mol, res); err != nil {
 		return err
+	}
+	if err := settle.RemoveWork(opts.WorkDir); err != nil {
+		fmt.Fprintf(stderr, "poise: warning: %v\n", err)
 	}
 	for _, w := range sum.Warnings {
 		fmt.Fprintf(stderr, "poise: warning: %s\n", w)
