@@ -128,6 +128,20 @@ func Analyze(sys System) (*Analysis, error) {
 			return nil, fmt.Errorf("freq: coordinate %d is %v", i+1, v)
 		}
 	}
+	// Atoms on top of each other have no rigid-body frame (and are no
+	// molecule).
+	for a := 0; a < nat; a++ {
+		for b := 0; b < a; b++ {
+			var d2 float64
+			for k := 0; k < 3; k++ {
+				d := sys.CoordsBohr[3*a+k] - sys.CoordsBohr[3*b+k]
+				d2 += d * d
+			}
+			if d2 < minSeparationBohr*minSeparationBohr {
+				return nil, fmt.Errorf("freq: atoms %d and %d are %.2g bohr apart: give distinct positions", b+1, a+1, math.Sqrt(d2))
+			}
+		}
+	}
 	for _, v := range sys.HessianAU {
 		if !finite(v) {
 			return nil, errors.New("freq: the Hessian has a non-finite element")
@@ -175,7 +189,10 @@ func Analyze(sys System) (*Analysis, error) {
 	if nvib == 0 {
 		return a, nil
 	}
-	vib := complementBasis(ext, n) // n × nvib, orthonormal columns
+	vib, err := complementBasis(ext, n) // n × nvib, orthonormal columns
+	if err != nil {
+		return nil, err
+	}
 	// BᵀH̃B.
 	var hb mat.Dense
 	hb.Mul(hmw, vib)
@@ -300,7 +317,9 @@ func externalBasis(masses, x []float64) (vecs [][]float64, linear bool) {
 		return vecs, false
 	}
 	var es mat.EigenSym
-	es.Factorize(inertia, true) // moments ascending
+	if !es.Factorize(inertia, true) { // moments ascending
+		return vecs, false
+	}
 	var axes mat.Dense
 	es.VectorsTo(&axes)
 	// Linear when every atom lies on the axis of the smallest moment.
@@ -358,10 +377,14 @@ func externalBasis(masses, x []float64) (vecs [][]float64, linear bool) {
 	return vecs, linear
 }
 
+// minSeparationBohr is the smallest distance between two atoms that
+// Analyze accepts; closer atoms are a mistake in the input.
+const minSeparationBohr = 0.01
+
 // complementBasis returns an n × (n − len(ext)) matrix whose orthonormal
 // columns span the complement of the orthonormal vectors ext: the
 // eigenvectors of the projector I − Σ e eᵀ with eigenvalue 1.
-func complementBasis(ext [][]float64, n int) *mat.Dense {
+func complementBasis(ext [][]float64, n int) (*mat.Dense, error) {
 	p := mat.NewSymDense(n, nil)
 	for i := 0; i < n; i++ {
 		for j := i; j < n; j++ {
@@ -376,7 +399,9 @@ func complementBasis(ext [][]float64, n int) *mat.Dense {
 		}
 	}
 	var es mat.EigenSym
-	es.Factorize(p, true)
+	if !es.Factorize(p, true) {
+		return nil, errors.New("freq: no vibrational subspace (the rigid-body directions are degenerate)")
+	}
 	var vec mat.Dense
 	es.VectorsTo(&vec)
 	m := n - len(ext)
@@ -387,7 +412,7 @@ func complementBasis(ext [][]float64, n int) *mat.Dense {
 			out.Set(i, c, vec.At(i, len(ext)+c))
 		}
 	}
-	return out
+	return out, nil
 }
 
 func dot(a, b []float64) float64 {

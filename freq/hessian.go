@@ -197,9 +197,11 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 	h.ReferenceSCFIterations = ref.SCFIterations
 
 	// The displaced points: reload what is saved.
+	// A single atom's Hessian is zero (translations only): nothing to
+	// displace.
 	steps := opt.stepList()
 	var jobs []displacement
-	for i := 0; i < n; i++ {
+	for i := 0; i < n && nat > 1; i++ {
 		for _, k := range steps {
 			jobs = append(jobs, displacement{i, k})
 		}
@@ -254,7 +256,7 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 		}
 	}
 	raw := make([]float64, n*n)
-	for i := 0; i < n; i++ {
+	for i := 0; i < n && nat > 1; i++ {
 		col(i, func(p *storedPoint) []float64 { return p.Gradient }, raw[i*n:(i+1)*n])
 	}
 	h.HessianAU = make([]float64, n*n)
@@ -266,7 +268,7 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 	}
 	if opt.Dipole {
 		h.DipoleDerivAU = make([]float64, 3*n)
-		for i := 0; i < n; i++ {
+		for i := 0; i < n && nat > 1; i++ {
 			col(i, func(p *storedPoint) []float64 { return p.DipoleAU[:] }, h.DipoleDerivAU[3*i:3*i+3])
 		}
 		if opt.Charge != 0 && opt.MassesU != nil {

@@ -34,7 +34,11 @@
 // low temperature; σ is the rotational symmetry number (G. Herzberg,
 // Molecular Spectra and Molecular Structure II, Van Nostrand 1945;
 // McQuarrie §8-3). Imaginary modes (given as negative wavenumbers) and zero
-// modes are left out of the vibrational sums with a warning. The electronic
+// modes are left out of the vibrational sums with a warning. A molecule is
+// linear when its point group is (every atom within the symmetry tolerance
+// of one line); one bent by more than BentLimitBohr that comes with 3N−6
+// frequencies, as the Hessian analysis gives it, is treated as bent with
+// its point group found below the bend, and a warning. The electronic
 // factor is the spin degeneracy 2S+1 by default; for molecules with
 // low-lying or orbitally degenerate states, such as NO (²Π½ and ²Π3/2,
 // 119.8 cm⁻¹ apart), the levels are given explicitly.

@@ -152,6 +152,38 @@ type Options struct {
 	LowModes LowModes
 }
 
+// BentLimitBohr is the largest distance of an atom from the molecular
+// axis at which the Hessian analysis still counts a molecule linear
+// (freq.LinearToleranceBohr, 1e-3 bohr). A molecule linear within the
+// point-group tolerance but bent by more than this comes from the Hessian
+// analysis with 3N−6 frequencies; NewModel then treats it as bent.
+const BentLimitBohr = 1e-3
+
+// offAxisBohr is the largest distance of an atom from the axis of the
+// smallest principal moment of inertia through the centre of mass.
+func offAxisBohr(atoms []pointgroup.Atom) float64 {
+	var com [3]float64
+	total := 0.0
+	for _, a := range atoms {
+		for k := range com {
+			com[k] += a.Mass * a.Position[k]
+		}
+		total += a.Mass
+	}
+	_, axes := pointgroup.Inertia(atoms)
+	u := axes[0]
+	worst := 0.0
+	for _, a := range atoms {
+		var p [3]float64
+		for k := range p {
+			p[k] = a.Position[k] - com[k]/total
+		}
+		h := p[0]*u[0] + p[1]*u[1] + p[2]*u[2]
+		worst = math.Max(worst, math.Sqrt(math.Pow(p[0]-h*u[0], 2)+math.Pow(p[1]-h*u[1], 2)+math.Pow(p[2]-h*u[2], 2)))
+	}
+	return worst
+}
+
 // Model is a molecule prepared for thermochemistry at any conditions.
 type Model struct {
 	Atoms          []pointgroup.Atom  // as used (symmetrized if asked)
@@ -190,6 +222,30 @@ func NewModel(in Input, opt Options) (*Model, error) {
 	if err != nil {
 		return nil, err
 	}
+	// Bent by more than the Hessian analysis allows for a linear molecule,
+	// but linear within the symmetry tolerance: the 3N−6 frequencies
+	// decide, and the point group is found again below the bend.
+	if n := len(in.Atoms); n >= 3 && m.PointGroup.Linear && len(in.FrequenciesCm1) == 3*n-6 {
+		if off := offAxisBohr(in.Atoms); off > BentLimitBohr {
+			tol := opt.SymmetryToleranceBohr
+			if !(tol > 0) {
+				tol = pointgroup.DefaultToleranceBohr
+			}
+			tight := math.Min(tol, off/2)
+			if opt.Symmetrize {
+				m.Atoms, m.PointGroup, err = pointgroup.Symmetrize(in.Atoms, tight)
+			} else {
+				m.PointGroup, err = pointgroup.Detect(in.Atoms, tight)
+			}
+			if err != nil {
+				return nil, err
+			}
+			m.Warnings = append(m.Warnings, fmt.Sprintf("an atom lies %.4f Å off the molecular axis: linear within the symmetry tolerance (%.4f Å), "+
+				"but the %d frequencies are those of a bent molecule (3N−6), so it is treated as bent (%s, point group found at %.4f Å); "+
+				"if the molecule is linear at its minimum, relax it tightly and compute its modes again",
+				off*units.BohrAngstrom, tol*units.BohrAngstrom, len(in.FrequenciesCm1), m.PointGroup.Symbol, tight*units.BohrAngstrom))
+		}
+	}
 	m.SymmetryNumber = m.PointGroup.SymmetryNumber
 	if opt.SymmetryNumber > 0 {
 		m.SymmetryNumber = opt.SymmetryNumber
@@ -209,9 +265,12 @@ func NewModel(in Input, opt Options) (*Model, error) {
 	case m.Rotor.Type == LinearRotor:
 		want = 3*n - 5
 	}
+	if n == 1 && len(in.FrequenciesCm1) != 0 {
+		return nil, fmt.Errorf("%d frequencies for a single atom: an atom has no vibrations, give none", len(in.FrequenciesCm1))
+	}
 	if len(in.FrequenciesCm1) != want {
 		hint := ""
-		if m.Rotor.Type == LinearRotor && len(in.FrequenciesCm1) == want-1 {
+		if m.Rotor.Type == LinearRotor && n >= 3 && len(in.FrequenciesCm1) == want-1 {
 			hint = "; the geometry is linear within the symmetry tolerance"
 		}
 		return nil, fmt.Errorf("%d frequencies for %d atoms (%s): give the %d vibrational wavenumbers (3N−%d), degenerate modes once per component%s",

@@ -52,6 +52,27 @@ type energyReport struct {
 	Version                  string       `json:"program_version"`
 	Symbols                  []string     `json:"symbols"`
 	GeometryAngstrom         [][3]float64 `json:"geometry_angstrom"`
+	// Stability is the wavefunction stability check (--stability).
+	Stability *stabilityReport `json:"stability,omitempty"`
+	// SCFNotes lists the convergence fallbacks and stability steps taken.
+	SCFNotes []string `json:"scf_notes,omitempty"`
+}
+
+// stabilityReport is the outcome of the stability check of the final
+// wavefunction, with the instabilities followed to reach it.
+type stabilityReport struct {
+	Kind                    string           `json:"kind"`
+	LowestEigenvalueHartree float64          `json:"lowest_eigenvalue_hartree"`
+	Stable                  bool             `json:"stable"`
+	Followed                []followedReport `json:"followed,omitempty"`
+}
+
+// followedReport is an unstable solution that was left along its
+// instability.
+type followedReport struct {
+	Kind                    string  `json:"kind"`
+	EnergyHartree           float64 `json:"energy_hartree"`
+	LowestEigenvalueHartree float64 `json:"lowest_eigenvalue_hartree"`
 }
 
 func newEnergyCmd() *cobra.Command {
@@ -163,6 +184,14 @@ func makeEnergyReport(path string, s *setup, res *scf.Result, threads int) *ener
 	for _, a := range s.mol.Atoms {
 		rep.Symbols = append(rep.Symbols, a.Symbol)
 	}
+	rep.SCFNotes = res.Fallbacks
+	if st := res.Stability; st != nil {
+		sr := &stabilityReport{Kind: st.Kind, LowestEigenvalueHartree: st.LowestEigenvalueHartree, Stable: st.Stable}
+		for _, f := range res.Followed {
+			sr.Followed = append(sr.Followed, followedReport{Kind: f.Kind, EnergyHartree: f.EnergyHartree, LowestEigenvalueHartree: f.LowestEigenvalueHartree})
+		}
+		rep.Stability = sr
+	}
 	return rep
 }
 
@@ -209,6 +238,16 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 	fmt.Fprintf(w, "; wall time %.2f s\n", rep.WallSeconds)
 	if rep.GridPoints > 0 {
 		fmt.Fprintf(w, "grid level %d: %d points; integrated electrons %.6f\n", rep.GridLevel, rep.GridPoints, rep.IntegratedElectrons)
+	}
+	if st := rep.Stability; st != nil {
+		for _, f := range st.Followed {
+			fmt.Fprintf(w, "stability: %s lowest eigenvalue %.6f Eh at %.10f Eh: unstable, followed\n", f.Kind, f.LowestEigenvalueHartree, f.EnergyHartree)
+		}
+		verdict := "stable"
+		if !st.Stable {
+			verdict = "UNSTABLE (rerun with --stability follow)"
+		}
+		fmt.Fprintf(w, "stability: %s lowest eigenvalue %.6f Eh: %s\n", st.Kind, st.LowestEigenvalueHartree, verdict)
 	}
 	fmt.Fprintln(w)
 

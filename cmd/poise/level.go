@@ -4,10 +4,13 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
+	"os"
 	"runtime"
 	"runtime/debug"
 	"strconv"
 	"strings"
+	"sync"
 
 	"github.com/spf13/cobra"
 
@@ -37,6 +40,7 @@ type levelFlags struct {
 	maxIter      int
 	gridLevel    int
 	dispersion   string
+	stability    string
 }
 
 func (f *levelFlags) register(cmd *cobra.Command) {
@@ -53,6 +57,25 @@ func (f *levelFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.maxIter, "max-iterations", scf.DefaultMaxIterations, "largest number of SCF iterations")
 	fl.StringVar(&f.dispersion, "dispersion", "none", "empirical dispersion correction: none or d3bj (Grimme's D3 with Becke–Johnson damping)")
 	fl.IntVar(&f.gridLevel, "grid", grid.DefaultLevel, "DFT integration grid level, 1 (coarse) to 5 (finest)")
+	fl.StringVar(&f.stability, "stability", "off", "wavefunction stability check: off; check (report a restricted → unrestricted or internal instability); follow (also follow it to the lower, unrestricted solution)")
+}
+
+// onceLogger returns a notice printer for the SCF that prints each
+// distinct notice once: a Hessian or a relaxation runs many SCFs that would
+// otherwise repeat the same notice (integral-direct, a fallback) for every
+// point. It is safe for concurrent use.
+func onceLogger(w io.Writer) func(string) {
+	var mu sync.Mutex
+	seen := map[string]bool{}
+	return func(msg string) {
+		mu.Lock()
+		defer mu.Unlock()
+		if seen[msg] {
+			return
+		}
+		seen[msg] = true
+		fmt.Fprintf(w, "poise: note: %s\n", msg)
+	}
 }
 
 // parseMemory reads sizes such as "2GiB", "512MiB", "4GB" or a plain number
@@ -79,14 +102,17 @@ func parseMemory(s string) (int64, error) {
 
 // setup is everything a calculation needs once the flags are read.
 type setup struct {
-	mol       *molecule.Molecule
-	set       *basis.Set
-	shells    []basis.Shell
-	conv      basis.Convention
-	opts      scf.Options
-	method    string
-	memBytes  int64
-	fn        *xc.Functional
+	mol      *molecule.Molecule
+	set      *basis.Set
+	shells   []basis.Shell
+	conv     basis.Convention
+	opts     scf.Options
+	method   string
+	memBytes int64
+	fn       *xc.Functional
+	// stability is the --stability mode; runSCF applies it (single
+	// energies only: relaxations and Hessians do not check every point).
+	stability scf.StabilityMode
 	gridLevel int
 	grid      *grid.Grid
 	// dispersion holds the D3(BJ) parameters when the correction is on.
@@ -125,6 +151,10 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 	if err != nil {
 		return nil, usageErr(err)
 	}
+	stab, err := scf.ParseStabilityMode(f.stability)
+	if err != nil {
+		return nil, usageErr(fmt.Errorf("--stability: %w", err))
+	}
 	fn, err := xc.Lookup(f.method)
 	if err != nil {
 		return nil, usageErr(fmt.Errorf("--method %q: available methods are %s", f.method, strings.Join(xc.Names(), ", ")))
@@ -151,6 +181,9 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 	}
 	if err := mol.SetSpin(f.charge, f.multiplicity); err != nil {
 		return nil, usageErr(fmt.Errorf("%s: %w", path, err))
+	}
+	if mol.NumElectrons() == 0 {
+		return nil, usageErr(fmt.Errorf("%s: with --charge %+d the molecule has no electrons: there is nothing to compute; give a smaller charge", path, f.charge))
 	}
 	set, err := basis.Load(f.basisName)
 	if err != nil {
@@ -179,8 +212,10 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 			MaxIterations: f.maxIter,
 			Threads:       f.threads,
 			MemoryBytes:   mem,
+			Log:           onceLogger(os.Stderr),
 		},
 		fn:         fn,
+		stability:  stab,
 		gridLevel:  f.gridLevel,
 		dispersion: disp,
 	}
@@ -214,7 +249,11 @@ func (s *setup) attachXC(frame *grid.Frame) error {
 		return err
 	}
 	s.grid = g
-	s.opts.XC = dft.New(s.fn, g, integral.NewBasis(s.shells), s.opts.Threads)
+	pot := dft.New(s.fn, g, integral.NewBasis(s.shells), s.opts.Threads)
+	// A quarter of --memory for the stored basis-function values (the
+	// in-core integrals take at most half).
+	pot.CacheBytes = max(s.memBytes/4, 1)
+	s.opts.XC = pot
 	return nil
 }
 
@@ -226,7 +265,9 @@ func runSCF(ctx context.Context, s *setup) (*scf.Result, error) {
 			return nil, err
 		}
 	}
-	res, err := scf.Run(ctx, s.mol, s.shells, s.opts)
+	opts := s.opts
+	opts.Stability = s.stability
+	res, err := scf.Run(ctx, s.mol, s.shells, opts)
 	if errors.Is(err, scf.ErrNotConverged) {
 		return res, convergeErr(fmt.Errorf("%w\n  try: --max-iterations %d; a smaller basis first; check the geometry, charge and multiplicity; for open shells --unrestricted",
 			err, 2*s.opts.MaxIterations))

@@ -499,7 +499,12 @@ func printModes(w io.Writer, file *freq.File, an *freq.Analysis, sc freq.Scaling
 	if formula == "" {
 		formula = strings.Join(file.Symbols, "")
 	}
-	fmt.Fprintf(w, "%s%s  %d atoms, %s: %d vibrations\n", formula, level, len(file.Symbols), kind, len(an.Modes))
+	switch nat := len(file.Symbols); {
+	case nat == 1:
+		fmt.Fprintf(w, "%s%s  a single atom: no vibrations\n", formula, level)
+	default:
+		fmt.Fprintf(w, "%s%s  %d atoms, %s: %s\n", formula, level, nat, kind, plural(len(an.Modes), "vibration"))
+	}
 	if file.MassNote != "" {
 		fmt.Fprintf(w, "masses: most abundant isotopes except %s\n", file.MassNote)
 	}
@@ -523,6 +528,12 @@ func printModes(w io.Writer, file *freq.File, an *freq.Analysis, sc freq.Scaling
 	}
 	fmt.Fprintln(w)
 
+	if len(an.Modes) == 0 {
+		if len(written) > 0 {
+			fmt.Fprintf(w, "written: %s\n", written[0])
+		}
+		return nil
+	}
 	header := []string{"mode", "cm⁻¹", fmt.Sprintf("scaled ×%.4g", sc.Frequency), "IR km/mol", "motion"}
 	if detail {
 		header = []string{"mode", "cm⁻¹", fmt.Sprintf("scaled ×%.4g", sc.Frequency), "IR km/mol", "μ (u)", "k (mdyn/Å)", "motion", "coordinates (share)"}

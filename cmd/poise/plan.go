@@ -52,6 +52,9 @@ func planModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags) e
 	if err != nil {
 		return err
 	}
+	if len(s.mol.Atoms) == 1 {
+		return usageErr(fmt.Errorf("%s: a single atom has no vibrations: there is nothing to plan (run 'poise modes %s' directly)", path, path))
+	}
 	sum, err := fileSHA256(path)
 	if err != nil {
 		return usageErr(err)

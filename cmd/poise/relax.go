@@ -424,7 +424,11 @@ func printRelaxReport(w io.Writer, rep *relaxReport, z []int, x0, x []float64, h
 	if !rep.Converged {
 		status = fmt.Sprintf("NOT converged (%s) after %d steps", rep.Convergence, rep.Steps)
 	}
-	fmt.Fprintf(w, "%s, %d gradient evaluations, %s coordinates; wall time %.1f s\n", status, rep.Evaluations, rep.Coordinates, rep.WallSeconds)
+	if len(z) == 1 {
+		fmt.Fprintf(w, "a single atom: nothing to relax (one energy and gradient, %d steps); wall time %.1f s\n", rep.Steps, rep.WallSeconds)
+	} else {
+		fmt.Fprintf(w, "%s, %d gradient evaluations, %s coordinates; wall time %.1f s\n", status, rep.Evaluations, rep.Coordinates, rep.WallSeconds)
+	}
 	fmt.Fprintf(w, "final energy %.10f Eh; largest gradient %.2e Eh/bohr, RMS %.2e\n", rep.EnergyHartree, rep.MaxGradient, rep.RMSGradient)
 	if len(rep.Frozen) > 0 {
 		fmt.Fprintf(w, "frozen atoms: %s\n", strings.Trim(strings.Join(strings.Fields(fmt.Sprint(rep.Frozen)), ", "), "[]"))
@@ -500,7 +504,19 @@ func printRelaxReport(w io.Writer, rep *relaxReport, z []int, x0, x []float64, h
 			continue
 		}
 		fmt.Fprintln(w, t.title)
-		if err := writeTable(w, []string{t.head, "start", "final", "change", ""}, t.rows); err != nil {
+		head, rows := []string{t.head, "start", "final", "change", ""}, t.rows
+		marked := false
+		for _, r := range rows {
+			marked = marked || r[4] != ""
+		}
+		if !marked { // no held or contact marks: no empty column
+			head = head[:4]
+			rows = make([][]string, len(t.rows))
+			for i, r := range t.rows {
+				rows[i] = r[:4]
+			}
+		}
+		if err := writeTable(w, head, rows); err != nil {
 			return err
 		}
 	}

@@ -238,6 +238,9 @@ func runSettle(cmd *cobra.Command, path string, lf *levelFlags, f *settleFlags) 
 	for _, w := range sum.Warnings {
 		fmt.Fprintf(stderr, "poise: warning: %s\n", w)
 	}
+	if note := atomNote(s.mol); note != "" {
+		fmt.Fprintf(stderr, "poise: note: %s\n", note)
+	}
 	out := cmd.OutOrStdout()
 	if f.asJSON {
 		enc := json.NewEncoder(out)
@@ -357,8 +360,13 @@ func printSettleSummary(w io.Writer, res *settle.Result, o settleOutput) {
 		}
 		fmt.Fprintf(w, "%d relaxation steps, %d displacement cycle(s), %d energy evaluations%s\n", s.RelaxSteps, s.Cycles, s.Evaluations, pre)
 	}
-	fmt.Fprintf(w, "point group %s (σ = %d); lowest wavenumber %s cm⁻¹; imaginary threshold %gi cm⁻¹\n",
-		s.PointGroup, s.SymmetryNumber, lowest(s.FrequenciesCm1), s.ThresholdCm1)
+	if len(s.GeometryAngstrom) == 1 {
+		fmt.Fprintf(w, "point group %s (σ = %d); a single atom: no vibrations, translational and electronic terms only\n",
+			s.PointGroup, s.SymmetryNumber)
+	} else {
+		fmt.Fprintf(w, "point group %s (σ = %d); lowest wavenumber %s cm⁻¹; imaginary threshold %gi cm⁻¹\n",
+			s.PointGroup, s.SymmetryNumber, lowest(s.FrequenciesCm1), s.ThresholdCm1)
+	}
 	if s.EnergyLevel != "" {
 		fmt.Fprintf(w, "electronic energy   %16.8f Eh at %s on the %s geometry\n", s.EnergyHartree, s.EnergyLevel, s.LevelOfTheory)
 		fmt.Fprintf(w, "                    %16.8f Eh at %s\n", s.SettleEnergyHartree, s.LevelOfTheory)
@@ -378,4 +386,48 @@ func lowest(v []float64) string {
 		return "—"
 	}
 	return wavenumberText(v[0])
+}
+
+// atomGroundTerms are the ground terms ^(2S+1)L of the neutral atoms H–Kr
+// (NIST Atomic Spectra Database, ground levels; from memory), indexed by Z.
+var atomGroundTerms = [...]string{"",
+	"²S", "¹S",
+	"²S", "¹S", "²P", "³P", "⁴S", "³P", "²P", "¹S",
+	"²S", "¹S", "²P", "³P", "⁴S", "³P", "²P", "¹S",
+	"²S", "¹S", "²D", "³F", "⁴F", "⁷S", "⁶S", "⁵D", "⁴F", "³F", "²S", "¹S",
+	"²P", "³P", "⁴S", "³P", "²P", "¹S",
+}
+
+// atomNote says what settle leaves out for a free neutral atom: a spin
+// multiplicity other than that of the ground term (the default is the
+// lowest one for the electron count, 1 or 2, which Hund's rule often
+// contradicts), and the spin–orbit levels of a ground term with L > 0,
+// whose degeneracy the electronic entropy needs beyond 2S+1. "" for
+// molecules, ions and ground terms that settle describes fully.
+func atomNote(mol *molecule.Molecule) string {
+	if len(mol.Atoms) != 1 || mol.Charge != 0 {
+		return ""
+	}
+	z := mol.Atoms[0].Z
+	if z <= 0 || z >= len(atomGroundTerms) {
+		return ""
+	}
+	term := atomGroundTerms[z]
+	r := []rune(term)
+	mult := 0
+	for d, sup := range []rune("⁰¹²³⁴⁵⁶⁷⁸⁹") {
+		if sup == r[0] {
+			mult = d
+		}
+	}
+	el := mol.Atoms[0].Symbol
+	if mult != mol.Multiplicity {
+		return fmt.Sprintf("the ground state of a free %s atom is %s (multiplicity %d), not multiplicity %d: give --multiplicity %d for it",
+			el, term, mult, mol.Multiplicity, mult)
+	}
+	if r[1] != 'S' {
+		return fmt.Sprintf("the %s ground term of %s is split by spin–orbit coupling, which the electronic entropy here (R ln %d) leaves out; "+
+			"'poise thermo --electronic-levels' takes the levels (wavenumber:degeneracy) for the standard entropy", term, el, mult)
+	}
+	return ""
 }

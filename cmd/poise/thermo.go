@@ -546,7 +546,8 @@ func printThermoReport(w io.Writer, rep *thermoReport, m *thermo.Model) error {
 		fmt.Fprintf(w, "rotational constants  %s cm⁻¹  =  %s GHz\n", strings.Join(cs, "  "), strings.Join(gs, "  "))
 		vib := make([]string, len(rep.FrequenciesCm1))
 		for i, v := range rep.FrequenciesCm1 {
-			vib[i] = strconv.FormatFloat(v, 'f', -1, 64)
+			// As given by hand (667.4), or to 0.1 cm⁻¹ from a modes file.
+			vib[i] = strconv.FormatFloat(math.Round(v*10)/10, 'f', -1, 64)
 		}
 		fmt.Fprintf(w, "vibrations (%d)       %s cm⁻¹\n", len(vib), strings.Join(vib, " "))
 		if len(rep.LeftOutCm1) > 0 {

@@ -6,8 +6,6 @@ import (
 	"math"
 	"sync"
 
-	"gonum.org/v1/gonum/mat"
-
 	"poise/energy/integral"
 )
 
@@ -54,6 +52,10 @@ func (p *Potential) Gradient(ctx context.Context, dens [][]float64, natoms int) 
 			return nil, fmt.Errorf("dft gradient: grid batch of atom %d, outside 0…%d", bt.Atom, natoms-1)
 		}
 	}
+	factors := make([]densityFactor, len(dens))
+	for s := range dens {
+		factors[s] = factorDensity(dens[s], n)
+	}
 	nb := len(p.grid.Batches)
 	const group = 512 // batches per group (small per-atom results): fixed, independent of threads
 	results := make([][]float64, group)
@@ -82,7 +84,7 @@ func (p *Potential) Gradient(ctx context.Context, dens [][]float64, natoms int) 
 					}
 					r := results[bi-start]
 					clear(r)
-					p.gradBatch(ws, bi, dens, r)
+					p.gradBatch(ws, bi, dens, factors, r)
 				}
 			}()
 		}
@@ -115,7 +117,7 @@ type gradWorkspace struct {
 }
 
 // gradBatch adds one batch's contribution to out (3·natoms).
-func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, out []float64) {
+func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, factors []densityFactor, out []float64) {
 	g := p.grid
 	bt := g.Batches[bi]
 	np := bt.End - bt.Start
@@ -153,8 +155,8 @@ func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, out [
 	if gga {
 		d1 = ws.d1
 	}
-	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens)
-	us, dsubs := bd.u, bd.dsub
+	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens, factors)
+	us := bd.u
 	// Per spin and point: a = w ∂e/∂ρ_s, b_k = w ∂e/∂(∂_kρ_s).
 	_, coefA, coefB := p.potentialCoefficients(bd, w, np)
 
@@ -183,7 +185,7 @@ func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, out [
 				}
 			}
 		}
-		mat.NewDense(np, m, ws.t).Mul(mat.NewDense(np, m, ws.zp), mat.NewDense(m, m, dsubs[s]))
+		bd.mulD(s, ws.zp, np, m, ws.t) // T = Z'D
 		u := us[s]
 		for pt := 0; pt < np; pt++ {
 			lo, hi := pt*m, pt*m+m

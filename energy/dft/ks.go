@@ -6,8 +6,6 @@ import (
 	"runtime"
 	"sync"
 
-	"gonum.org/v1/gonum/mat"
-
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/xc"
@@ -16,6 +14,12 @@ import (
 // functionCutoff is the value below which a basis function is treated as
 // zero on a batch of grid points.
 const functionCutoff = 1e-11
+
+// primitiveCutoff is the size below which a primitive Gaussian's term in a
+// basis function's radial part (or its derivative) is left out: ten orders
+// of magnitude below functionCutoff, so no retained value moves by more
+// than 1e-20.
+const primitiveCutoff = 1e-20
 
 // Potential evaluates the exchange–correlation energy and Kohn–Sham matrix
 // of one functional on one grid for one basis.
@@ -31,6 +35,22 @@ type Potential struct {
 	// are added in order: as many as fit in groupBytes (at least 16, at
 	// most 512), a property of the system, never of the thread count.
 	group int
+
+	// CacheBytes bounds the memory of the basis-function values (and, for a
+	// GGA, their first derivatives) that Build keeps from one call to the
+	// next: the values depend only on the grid and the basis, which are
+	// fixed for a Potential, while an SCF calls Build once per iteration.
+	// Batches are taken in order while they fit; the others are evaluated
+	// anew on every call. Zero means DefaultCacheBytes; a negative value
+	// keeps nothing. Set it before the first Build; it does not change
+	// results. The memory is freed with the Potential.
+	CacheBytes int64
+	cache      []batchValues // per batch; vals nil until stored
+	cached     []bool        // per batch: store its values
+	// Scratch kept from one Build to the next: the potential blocks of one
+	// group of batches and the per-thread workspaces.
+	results []batchResult
+	wss     []*workspace
 }
 
 // groupBytes bounds the memory of the per-batch potential blocks held at
@@ -38,6 +58,9 @@ type Potential struct {
 const groupBytes = 64 << 20
 
 // New prepares the exchange–correlation build. threads ≤ 0 means all cores.
+// The Potential belongs to one geometry: g and b must not be changed while
+// it is in use (it screens shells per batch here and keeps function values
+// between Builds).
 func New(fn *xc.Functional, g *grid.Grid, b *integral.Basis, threads int) *Potential {
 	if threads <= 0 {
 		threads = runtime.GOMAXPROCS(0)
@@ -92,9 +115,9 @@ func shellExtent(l int, exps, coefs []float64) float64 {
 }
 
 // batchResult is one batch's contribution, added to the totals in batch
-// order.
+// order. Its buffers are reused from group to group.
 type batchResult struct {
-	fns []int       // global function indices of the block
+	fns []int32     // global function indices of the block
 	v   [][]float64 // per spin: len(fns)² potential block
 	exc float64
 	nel float64
@@ -103,29 +126,44 @@ type batchResult struct {
 // Build evaluates the exchange–correlation energy for the densities (one
 // total density, or α and β) and adds the potential into v. It returns the
 // energy and the integrated electron count.
+//
+// The first Build of a Potential also stores the basis-function values of
+// as many batches as CacheBytes allows (see there); later Builds reuse them.
+// Build is not safe for concurrent use on one Potential.
 func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) (float64, float64, error) {
+	p.prepareCache()
+	factors := make([]densityFactor, len(dens))
+	for s := range dens {
+		factors[s] = factorDensity(dens[s], p.b.NBF)
+	}
 	nb := len(p.grid.Batches)
 	group := p.group
-	results := make([]batchResult, group)
+	if len(p.results) != group {
+		p.results = make([]batchResult, group)
+	}
+	results := p.results
+	for i := range results {
+		for len(results[i].v) < len(dens) {
+			results[i].v = append(results[i].v, nil)
+		}
+		results[i].v = results[i].v[:len(dens)]
+	}
+	for len(p.wss) < p.threads {
+		p.wss = append(p.wss, &workspace{})
+	}
+	wss := p.wss
 	var exc, nel float64
 	n := p.b.NBF
 	for start := 0; start < nb; start += group {
-		end := start + group
-		if end > nb {
-			end = nb
-		}
+		end := min(start+group, nb)
 		var wg sync.WaitGroup
 		var mu sync.Mutex
 		next := start
-		workers := p.threads
-		if workers > end-start {
-			workers = end - start
-		}
+		workers := min(p.threads, end-start)
 		for t := 0; t < workers; t++ {
 			wg.Add(1)
-			go func() {
+			go func(ws *workspace) {
 				defer wg.Done()
-				ws := &workspace{}
 				for ctx.Err() == nil {
 					mu.Lock()
 					bi := next
@@ -134,9 +172,9 @@ func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) 
 					if bi >= end {
 						return
 					}
-					results[bi-start] = p.batch(ws, bi, dens)
+					p.batch(ws, bi, dens, factors, &results[bi-start])
 				}
-			}()
+			}(wss[t])
 		}
 		wg.Wait()
 		if err := ctx.Err(); err != nil {
@@ -151,23 +189,92 @@ func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) 
 				vs := v[s]
 				blk := r.v[s]
 				for a := 0; a < m; a++ {
-					row := r.fns[a] * n
-					for b := 0; b < m; b++ {
-						vs[row+r.fns[b]] += blk[a*m+b]
+					row := int(r.fns[a]) * n
+					br := blk[a*m : a*m+m]
+					for b, x := range br {
+						vs[row+int(r.fns[b])] += x
 					}
 				}
 			}
-			results[i] = batchResult{}
 		}
 	}
 	return exc, nel, nil
 }
 
-// workspace is per-goroutine scratch.
+// DefaultCacheBytes is the memory budget for stored basis-function values
+// used when Potential.CacheBytes is zero.
+const DefaultCacheBytes = 512 << 20
+
+// batchValues are the basis-function values of one batch: the functions
+// that are not negligible on it and, function-major (one row of np points
+// per function), their values and, for a GGA, their x, y and z derivatives.
+type batchValues struct {
+	fns  []int32   // global indices of the kept functions
+	vals []float64 // nv blocks of len(fns)×np: φ, ∂xφ, ∂yφ, ∂zφ
+}
+
+// prepareCache decides, once per Potential, which batches keep their
+// function values: the first ones, in batch order, whose upper-bound size
+// (all functions of the shells that reach the batch) still fits in the
+// budget. The choice depends on the grid and basis only.
+func (p *Potential) prepareCache() {
+	if p.cache != nil {
+		return
+	}
+	p.cache = make([]batchValues, len(p.grid.Batches))
+	p.cached = make([]bool, len(p.grid.Batches))
+	budget := p.CacheBytes
+	if budget == 0 {
+		budget = DefaultCacheBytes
+	}
+	nv := int64(1)
+	if p.fn.IsGGA() {
+		nv = 4
+	}
+	var used int64
+	for bi, bt := range p.grid.Batches {
+		m := 0
+		for _, si := range p.batchShells[bi] {
+			m += p.b.Shells[si].NumFunctions()
+		}
+		size := 8*nv*int64(m)*int64(bt.End-bt.Start) + 4*int64(m)
+		if used+size > budget {
+			continue
+		}
+		used += size
+		p.cached[bi] = true
+	}
+}
+
+// CachedBytes returns the memory held by stored basis-function values.
+func (p *Potential) CachedBytes() int64 {
+	var s int64
+	for _, c := range p.cache {
+		s += 8*int64(len(c.vals)) + 4*int64(len(c.fns))
+	}
+	return s
+}
+
+// workspace is per-goroutine scratch of Build.
 type workspace struct {
-	phi, gx, gy, gz []float64
-	cart            []float64
-	buf             []float64
+	eval     []float64 // nv×mAll×np function values as evaluated
+	fns      []int32
+	keep     []int32 // positions in eval of the kept functions
+	lim      []float64
+	lsub     []float64 // m×r rows of the density factor
+	lsubT    []float64 // r×m
+	x        []float64 // np×r: φ L_sub
+	cart     []float64
+	phiRow   []float64 // np×m: φ point-major
+	dsub     []float64 // m×m
+	ut       []float64 // m×np: (Dφ)ᵀ
+	zt       []float64 // m×np
+	mblk     []float64 // m×m
+	rho      [2][]float64
+	grad     [2][3][]float64
+	coef     coefficients
+	rhoViews [][]float64
+	grdViews [][3][]float64
 }
 
 func grow(s []float64, n int) []float64 {
@@ -179,100 +286,299 @@ func grow(s []float64, n int) []float64 {
 	return s
 }
 
-// batch computes one batch's contribution.
-func (p *Potential) batch(ws *workspace, bi int, dens [][]float64) batchResult {
-	g := p.grid
-	bt := g.Batches[bi]
+// resize returns s with length n, contents unspecified.
+func resize(s []float64, n int) []float64 {
+	if cap(s) < n {
+		return make([]float64, n)
+	}
+	return s[:n]
+}
+
+// values returns the kept functions of batch bi and their values (see
+// batchValues), from the cache or evaluated into ws.
+func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
+	if c := &p.cache[bi]; c.vals != nil {
+		return c.fns, c.vals
+	}
+	bt := p.grid.Batches[bi]
 	np := bt.End - bt.Start
 	shells := p.batchShells[bi]
 	gga := p.fn.IsGGA()
-	// Function indices of the block.
-	var fns []int
+	nv := 1
+	if gga {
+		nv = 4
+	}
+	mAll := 0
+	for _, si := range shells {
+		mAll += p.b.Shells[si].NumFunctions()
+	}
+	ws.eval = resize(ws.eval, nv*mAll*np)
+	p.evalFunctions(ws.eval, ws, bt.Start, np, shells, mAll, gga)
+	// Keep the functions that reach functionCutoff (value or a derivative)
+	// somewhere on the batch, moving their rows down in place.
+	ws.fns, ws.keep = ws.fns[:0], ws.keep[:0]
+	a := 0
 	for _, si := range shells {
 		off := p.b.Offsets[si]
 		for f := 0; f < p.b.Shells[si].NumFunctions(); f++ {
-			fns = append(fns, off+f)
+			reached := false
+		scan:
+			for k := 0; k < nv; k++ {
+				for _, x := range ws.eval[(k*mAll+a)*np : (k*mAll+a+1)*np] {
+					if math.Abs(x) >= functionCutoff {
+						reached = true
+						break scan
+					}
+				}
+			}
+			if reached {
+				ws.fns = append(ws.fns, int32(off+f))
+				ws.keep = append(ws.keep, int32(a))
+			}
+			a++
 		}
 	}
-	m := len(fns)
-	res := batchResult{fns: fns}
-	if m == 0 {
-		return res
+	m := len(ws.fns)
+	if m < mAll {
+		for k := 0; k < nv; k++ {
+			for j, src := range ws.keep {
+				copy(ws.eval[(k*m+j)*np:(k*m+j+1)*np], ws.eval[(k*mAll+int(src))*np:(k*mAll+int(src)+1)*np])
+			}
+		}
 	}
-	ws.phi = grow(ws.phi, np*m)
-	if gga {
-		ws.gx = grow(ws.gx, np*m)
-		ws.gy = grow(ws.gy, np*m)
-		ws.gz = grow(ws.gz, np*m)
+	fns, vals := ws.fns, ws.eval[:nv*m*np]
+	if p.cached[bi] {
+		c := &p.cache[bi]
+		c.fns = append([]int32(nil), fns...)
+		c.vals = append(make([]float64, 0, len(vals)), vals...)
+		return c.fns, c.vals
 	}
-	p.evalFunctions(ws, bt.Start, np, shells, m, gga)
+	return fns, vals
+}
 
+// batch computes one batch's contribution into res.
+func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []densityFactor, res *batchResult) {
+	bt := p.grid.Batches[bi]
+	np := bt.End - bt.Start
+	gga := p.fn.IsGGA()
+	fns, vals := p.values(ws, bi)
+	m := len(fns)
+	res.fns = append(res.fns[:0], fns...)
+	res.exc, res.nel = 0, 0
 	nspin := len(dens)
+	for s := 0; s < nspin; s++ {
+		res.v[s] = resize(res.v[s], m*m)
+	}
+	if m == 0 {
+		return
+	}
+	phiT := vals[:m*np]
 	var d1 [3][]float64
 	if gga {
-		d1 = [3][]float64{ws.gx, ws.gy, ws.gz}
+		for k := range d1 {
+			d1[k] = vals[(k+1)*m*np : (k+2)*m*np]
+		}
 	}
-	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens)
-	rho := bd.rho
-	phiM := mat.NewDense(np, m, ws.phi)
-	w := g.W[bt.Start:bt.End]
-	e, coefA, coefB := p.potentialCoefficients(bd, w, np)
-	// zcoef[s] holds, per point, the coefficients of φ (index 0) and of
-	// ∇φ (1..3) in Z_pμ for spin s.
-	zcoef := make([][4][]float64, nspin)
-	for s := range zcoef {
-		zcoef[s][0] = coefA[s]
-		for pt := range coefA[s] {
-			coefA[s][pt] *= 0.5
+	n := p.b.NBF
+	ws.phiRow = resize(ws.phiRow, np*m)
+	transpose(phiT, m, np, ws.phiRow)
+	ws.dsub = resize(ws.dsub, m*m)
+	ws.ut = resize(ws.ut, m*np)
+	ws.rhoViews = ws.rhoViews[:0]
+	ws.grdViews = ws.grdViews[:0]
+	for s := 0; s < nspin; s++ {
+		// U = D_sub φ (function-major), ρ = Σ_μ φ_μ U_μ, ∇ρ = 2 Σ_μ ∇φ_μ U_μ.
+		if f := factors[s]; f.ok && 2*f.rank < m {
+			// D = L Lᵀ of rank r: X = φ L_sub (np×r), U = L_sub Xᵀ, at
+			// 4·np·m·r operations instead of 2·np·m².
+			r := f.rank
+			ws.lsub = resize(ws.lsub, m*r)
+			ws.lsubT = resize(ws.lsubT, r*m)
+			for a, fa := range fns {
+				copy(ws.lsub[a*r:a*r+r], f.l[int(fa)*r:int(fa)*r+r])
+			}
+			transpose(ws.lsub, m, r, ws.lsubT)
+			ws.x = resize(ws.x, np*r)
+			dotProducts(ws.phiRow, np, ws.lsubT, r, m, ws.x, r)
+			dotProducts(ws.lsub, m, ws.x, np, r, ws.ut, np)
+		} else {
+			for a, fa := range fns {
+				row := int(fa) * n
+				dr := ws.dsub[a*m : a*m+m]
+				for b, fb := range fns {
+					dr[b] = dens[s][row+int(fb)]
+				}
+			}
+			dotProducts(ws.dsub, m, ws.phiRow, np, m, ws.ut, np)
 		}
+		ws.rho[s] = grow(ws.rho[s], np)
+		columnDots(phiT, ws.ut, m, np, ws.rho[s])
+		ws.rhoViews = append(ws.rhoViews, ws.rho[s])
+		var gr [3][]float64
 		if gga {
-			zcoef[s][1], zcoef[s][2], zcoef[s][3] = coefB[s][0], coefB[s][1], coefB[s][2]
+			for k := 0; k < 3; k++ {
+				ws.grad[s][k] = grow(ws.grad[s][k], np)
+				columnDots(d1[k], ws.ut, m, np, ws.grad[s][k])
+				g := ws.grad[s][k]
+				for pt := range g {
+					g[pt] *= 2
+				}
+				gr[k] = g
+			}
 		}
+		ws.grdViews = append(ws.grdViews, gr)
+	}
+	w := p.grid.W[bt.Start:bt.End]
+	c := &ws.coef
+	p.coefficients(c, ws.rhoViews, ws.grdViews, w, np)
+	for s := 0; s < nspin; s++ {
+		rho := ws.rho[s]
 		for pt := 0; pt < np; pt++ {
-			res.nel += w[pt] * rho[s][pt]
+			res.nel += w[pt] * rho[pt]
 		}
 	}
 	for pt := 0; pt < np; pt++ {
-		res.exc += w[pt] * e[pt]
+		res.exc += w[pt] * c.e[pt]
 	}
-	// V = φᵀZ + Zᵀφ per spin.
-	res.v = make([][]float64, nspin)
-	z := make([]float64, np*m)
+	// V = φᵀZ + Zᵀφ per spin, Z_pμ = ½a_p φ_pμ + Σ_k b_pk ∂_kφ_pμ.
+	ws.zt = resize(ws.zt, m*np)
+	ws.mblk = resize(ws.mblk, m*m)
 	for s := 0; s < nspin; s++ {
-		for pt := 0; pt < np; pt++ {
-			c0 := zcoef[s][0][pt]
-			zr := z[pt*m : pt*m+m]
-			pr := ws.phi[pt*m : pt*m+m]
-			for a := range zr {
-				zr[a] = c0 * pr[a]
-			}
+		ca := c.a[s][:np]
+		var cb [3][]float64
+		if gga {
+			cb = [3][]float64{c.b[s][0][:np], c.b[s][1][:np], c.b[s][2][:np]}
+		}
+		for a := 0; a < m; a++ {
+			zr := ws.zt[a*np : a*np+np]
+			pr := phiT[a*np : a*np+np]
 			if gga {
-				cx, cy, cz := zcoef[s][1][pt], zcoef[s][2][pt], zcoef[s][3][pt]
-				gxr, gyr, gzr := ws.gx[pt*m:pt*m+m], ws.gy[pt*m:pt*m+m], ws.gz[pt*m:pt*m+m]
-				for a := range zr {
-					zr[a] += cx*gxr[a] + cy*gyr[a] + cz*gzr[a]
+				xr, yr, zz := d1[0][a*np:a*np+np], d1[1][a*np:a*np+np], d1[2][a*np:a*np+np]
+				bx, by, bz := cb[0], cb[1], cb[2]
+				for pt := range zr {
+					zr[pt] = 0.5*ca[pt]*pr[pt] + (bx[pt]*xr[pt] + by[pt]*yr[pt] + bz[pt]*zz[pt])
+				}
+			} else {
+				for pt := range zr {
+					zr[pt] = 0.5 * ca[pt] * pr[pt]
 				}
 			}
 		}
-		vb := make([]float64, m*m)
-		mat.NewDense(m, m, vb).Mul(phiM.T(), mat.NewDense(np, m, z))
+		dotProducts(phiT, m, ws.zt, m, np, ws.mblk, m)
+		vb := res.v[s]
 		for a := 0; a < m; a++ {
-			for b := 0; b < a; b++ {
-				t := vb[a*m+b] + vb[b*m+a]
+			for b := 0; b <= a; b++ {
+				t := ws.mblk[a*m+b] + ws.mblk[b*m+a]
 				vb[a*m+b], vb[b*m+a] = t, t
 			}
-			vb[a*m+a] *= 2
 		}
-		res.v[s] = vb
 	}
-	return res
 }
 
-// evalFunctions fills ws.phi (and gradients) for np points from start with
-// the functions of the given shells (columns in shell order).
-func (p *Potential) evalFunctions(ws *workspace, start, np int, shells []int32, m int, gga bool) {
+// densityFactor is D ≈ L Lᵀ with L n×rank (row-major), when ok.
+type densityFactor struct {
+	l    []float64
+	rank int
+	ok   bool
+}
+
+// factorTolerance is the largest diagonal element, relative to the largest
+// of D, left in the Schur complement when the factorization of a density
+// matrix stops; every element of D − L Lᵀ is at most that in size.
+const factorTolerance = 1e-14
+
+// factorDensity factors the symmetric n×n matrix d (row-major) as L Lᵀ by
+// Cholesky decomposition with diagonal pivoting (N. J. Higham, Accuracy and
+// Stability of Numerical Algorithms, 2nd ed., SIAM 2002, §10.3), stopping
+// when the remaining diagonal is below factorTolerance times the largest
+// diagonal element. A density matrix built from occupied orbitals is
+// positive semidefinite with rank equal to the number of occupied orbitals,
+// so L is narrow. ok is false when d is not positive semidefinite within
+// that tolerance (then the batches use d itself).
+func factorDensity(d []float64, n int) densityFactor {
+	if n == 0 || len(d) != n*n {
+		return densityFactor{}
+	}
+	s := append([]float64(nil), d...)
+	var dmax float64
+	for i := 0; i < n; i++ {
+		dmax = max(dmax, math.Abs(s[i*n+i]))
+	}
+	tol := factorTolerance * dmax
+	var cols [][]float64
+	done := make([]bool, n)
+	for len(cols) < n {
+		j, best := -1, 0.0
+		for i := 0; i < n; i++ {
+			if !done[i] && s[i*n+i] > best {
+				j, best = i, s[i*n+i]
+			}
+		}
+		if j < 0 || best <= tol {
+			break
+		}
+		done[j] = true
+		col := make([]float64, n)
+		inv := 1 / math.Sqrt(best)
+		for i := 0; i < n; i++ {
+			if !done[i] || i == j {
+				col[i] = s[i*n+j] * inv
+			}
+		}
+		col[j] = math.Sqrt(best)
+		for i := 0; i < n; i++ {
+			ci := col[i]
+			if ci == 0 {
+				continue
+			}
+			row := s[i*n : i*n+n]
+			for k, ck := range col {
+				row[k] -= ci * ck
+			}
+		}
+		cols = append(cols, col)
+	}
+	// What is left must be negligible: a positive semidefinite remainder
+	// has its largest elements on the diagonal.
+	for i := 0; i < n; i++ {
+		for k := 0; k < n; k++ {
+			if math.Abs(s[i*n+k]) > tol {
+				return densityFactor{}
+			}
+		}
+	}
+	r := len(cols)
+	l := make([]float64, n*r)
+	for k, col := range cols {
+		for i, c := range col {
+			l[i*r+k] = c
+		}
+	}
+	return densityFactor{l: l, rank: r, ok: true}
+}
+
+// columnDots sets out[p] = Σ_a x[a·np+p] y[a·np+p] for two function-major
+// m×np blocks, adding the rows in order.
+func columnDots(x, y []float64, m, np int, out []float64) {
+	out = out[:np]
+	clear(out)
+	for a := 0; a < m; a++ {
+		xr := x[a*np : a*np+np]
+		yr := y[a*np : a*np+np]
+		for pt := range out {
+			out[pt] += xr[pt] * yr[pt]
+		}
+	}
+}
+
+// evalFunctions fills out, function-major, with the values (and, for a
+// GGA, then the x, y and z derivatives in three more blocks) of the m
+// functions of the given shells (in shell order) at np points from start:
+// out[(k·m+μ)·np+p].
+func (p *Potential) evalFunctions(out []float64, ws *workspace, start, np int, shells []int32, m int, gga bool) {
 	g := p.grid
 	col := 0
+	bx, by, bz := g.X[start:start+np], g.Y[start:start+np], g.Z[start:start+np]
 	for _, si := range shells {
 		sh := &p.b.Shells[si]
 		l := sh.L
@@ -281,22 +587,44 @@ func (p *Potential) evalFunctions(ws *workspace, start, np int, shells []int32, 
 		comps := integral.CartesianExponents(l)
 		nc := len(comps)
 		nf := sh.NumFunctions()
-		ws.cart = grow(ws.cart, 4*nc)
+		if cap(ws.cart) < 4*nc {
+			ws.cart = make([]float64, 4*nc)
+		}
 		cv := ws.cart[:nc]
 		cgx, cgy, cgz := ws.cart[nc:2*nc], ws.cart[2*nc:3*nc], ws.cart[3*nc:4*nc]
 		cx, cy, cz := sh.Center[0], sh.Center[1], sh.Center[2]
+		// A primitive whose term in the radial part and in its derivative,
+		// |c|·max(1, 2α)·e^{−αr²}, is below primitiveCutoff is left out:
+		// skip it when αr² exceeds lim.
+		if cap(ws.lim) < len(sh.Exponents) {
+			ws.lim = make([]float64, len(sh.Exponents))
+		}
+		lim := ws.lim[:len(sh.Exponents)]
+		for k, a := range sh.Exponents {
+			lim[k] = math.Log(math.Abs(coefs[k]) * max(1, 2*a) / primitiveCutoff)
+		}
 		var px, py, pz [16]float64
 		for pt := 0; pt < np; pt++ {
-			i := start + pt
-			dx, dy, dz := g.X[i]-cx, g.Y[i]-cy, g.Z[i]-cz
+			dx, dy, dz := bx[pt]-cx, by[pt]-cy, bz[pt]-cz
 			r2 := dx*dx + dy*dy + dz*dz
 			var rad, drad float64 // radial part and its derivative d/d(r²)·2
 			for k, a := range sh.Exponents {
+				if a*r2 > lim[k] {
+					continue
+				}
 				ex := coefs[k] * math.Exp(-a*r2)
 				rad += ex
 				drad -= 2 * a * ex
 			}
 			if math.Abs(rad) < 1e-300 && math.Abs(drad) < 1e-300 {
+				for f := 0; f < nf; f++ {
+					out[(col+f)*np+pt] = 0
+					if gga {
+						out[(m+col+f)*np+pt] = 0
+						out[(2*m+col+f)*np+pt] = 0
+						out[(3*m+col+f)*np+pt] = 0
+					}
+				}
 				continue
 			}
 			px[0], py[0], pz[0] = 1, 1, 1
@@ -322,7 +650,6 @@ func (p *Potential) evalFunctions(ws *workspace, start, np int, shells []int32, 
 					cgz[c] = ddz*rad + poly*drad*dz
 				}
 			}
-			row := pt * m
 			for f := 0; f < nf; f++ {
 				tr := trans[f*nc : f*nc+nc]
 				var s, sx, sy, sz float64
@@ -337,11 +664,11 @@ func (p *Potential) evalFunctions(ws *workspace, start, np int, shells []int32, 
 						sz += t * cgz[c]
 					}
 				}
-				ws.phi[row+col+f] = s
+				out[(col+f)*np+pt] = s
 				if gga {
-					ws.gx[row+col+f] = sx
-					ws.gy[row+col+f] = sy
-					ws.gz[row+col+f] = sz
+					out[(m+col+f)*np+pt] = sx
+					out[(2*m+col+f)*np+pt] = sy
+					out[(3*m+col+f)*np+pt] = sz
 				}
 			}
 		}
@@ -353,34 +680,63 @@ func (p *Potential) evalFunctions(ws *workspace, start, np int, shells []int32, 
 type batchDensities struct {
 	rho  [][]float64    // ρ_s at the points
 	grad [][3][]float64 // ∇ρ_s (GGA only)
-	dsub [][]float64    // the m×m block of D_s over the batch's functions
-	u    [][]float64    // U = φ·D_sub (np×m), reused by the gradient
+	dsub [][]float64    // the m×m block of D_s over the batch's functions, or nil
+	lsub [][]float64    // else D_s ≈ L Lᵀ: the m×r rows of L of the functions
+	rank []int
+	u    [][]float64 // U = φ·D_sub (np×m), reused by the gradient
+}
+
+// mulD sets out (np×m) to x·D_sub of spin s for a point-major np×m block x.
+func (bd *batchDensities) mulD(s int, x []float64, np, m int, out []float64) {
+	if bd.dsub[s] != nil {
+		dotProducts(x, np, bd.dsub[s], m, m, out, m) // D symmetric
+		return
+	}
+	r := bd.rank[s]
+	l := bd.lsub[s]
+	lt := make([]float64, r*m)
+	transpose(l, m, r, lt)
+	y := make([]float64, np*r)
+	dotProducts(x, np, lt, r, m, y, r) // x L
+	dotProducts(y, np, l, m, r, out, m)
 }
 
 // batchDensity forms ρ_s = Σ_μν D_μν φ_μ φ_ν and, when d1 (the first
 // derivatives of the functions, np×m each) is given, ∇ρ_s = 2 Σ_μν D_μν
 // φ_μ ∇φ_ν at the np points whose function values (np×m) are phi, for the
-// m functions fns of a basis of n.
-func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, dens [][]float64) batchDensities {
+// m functions fns of a basis of n. Where factors[s] is a usable factor
+// of D_s of rank r with 2r < m, products with D_sub go through it.
+func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, dens [][]float64, factors []densityFactor) batchDensities {
 	nspin := len(dens)
 	gga := d1[0] != nil
 	out := batchDensities{
 		rho:  make([][]float64, nspin),
 		grad: make([][3][]float64, nspin),
 		dsub: make([][]float64, nspin),
+		lsub: make([][]float64, nspin),
+		rank: make([]int, nspin),
 		u:    make([][]float64, nspin),
 	}
-	phiM := mat.NewDense(np, m, phi)
 	for s := 0; s < nspin; s++ {
-		dsub := make([]float64, m*m)
-		for a := 0; a < m; a++ {
-			row := fns[a] * n
-			for b := 0; b < m; b++ {
-				dsub[a*m+b] = dens[s][row+fns[b]]
+		if f := factors[s]; f.ok && 2*f.rank < m {
+			r := f.rank
+			l := make([]float64, m*r)
+			for a, fa := range fns {
+				copy(l[a*r:a*r+r], f.l[fa*r:fa*r+r])
 			}
+			out.lsub[s], out.rank[s] = l, r
+		} else {
+			dsub := make([]float64, m*m)
+			for a := 0; a < m; a++ {
+				row := fns[a] * n
+				for b := 0; b < m; b++ {
+					dsub[a*m+b] = dens[s][row+fns[b]]
+				}
+			}
+			out.dsub[s] = dsub
 		}
 		u := make([]float64, np*m)
-		mat.NewDense(np, m, u).Mul(phiM, mat.NewDense(m, m, dsub))
+		out.mulD(s, phi, np, m, u)
 		r := make([]float64, np)
 		var gr [3][]float64
 		if gga {
@@ -407,7 +763,7 @@ func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, d
 				}
 			}
 		}
-		out.rho[s], out.grad[s], out.dsub[s], out.u[s] = r, gr, dsub, u
+		out.rho[s], out.grad[s], out.u[s] = r, gr, u
 	}
 	return out
 }
@@ -417,25 +773,46 @@ func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, d
 // the vector b_s = w ∂e/∂(∇ρ_s): 2 ∂e/∂σ ∇ρ for a total density,
 // 2 ∂e/∂σ_ss ∇ρ_s + ∂e/∂σ_αβ ∇ρ_s' for spin densities.
 func (p *Potential) potentialCoefficients(bd batchDensities, w []float64, np int) (e []float64, a [][]float64, b [][3][]float64) {
+	var c coefficients
+	p.coefficients(&c, bd.rho, bd.grad, w, np)
+	nspin := len(bd.rho)
+	return c.e, c.a[:nspin], c.b[:nspin]
+}
+
+// coefficients holds the output of the functional on one batch (see
+// potentialCoefficients) and its scratch, reused from batch to batch.
+type coefficients struct {
+	e       []float64
+	a       [][]float64
+	b       [][3][]float64
+	scratch [6][]float64
+}
+
+// coefficients fills c for the densities rho (per spin) and, for a GGA,
+// their gradients grad at np points of weights w.
+func (p *Potential) coefficients(c *coefficients, rho [][]float64, grad [][3][]float64, w []float64, np int) {
 	gga := p.fn.IsGGA()
-	rho, grad := bd.rho, bd.grad
 	nspin := len(rho)
-	e = make([]float64, np)
-	a = make([][]float64, nspin)
-	b = make([][3][]float64, nspin)
+	c.e = resize(c.e, np)
+	for len(c.a) < 2 {
+		c.a = append(c.a, nil)
+		c.b = append(c.b, [3][]float64{})
+	}
 	for s := 0; s < nspin; s++ {
-		a[s] = make([]float64, np)
+		c.a[s] = resize(c.a[s], np)
 		if gga {
 			for k := 0; k < 3; k++ {
-				b[s][k] = make([]float64, np)
+				c.b[s][k] = resize(c.b[s][k], np)
 			}
 		}
 	}
+	e, a, b := c.e, c.a, c.b
 	if nspin == 1 {
 		var sigma, vsigma []float64
 		if gga {
-			sigma = make([]float64, np)
-			vsigma = make([]float64, np)
+			c.scratch[0] = resize(c.scratch[0], np)
+			c.scratch[1] = resize(c.scratch[1], np)
+			sigma, vsigma = c.scratch[0], c.scratch[1]
 			for pt := 0; pt < np; pt++ {
 				gx, gy, gz := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
 				sigma[pt] = gx*gx + gy*gy + gz*gz
@@ -451,12 +828,15 @@ func (p *Potential) potentialCoefficients(bd batchDensities, w []float64, np int
 				}
 			}
 		}
-		return e, a, b
+		return
 	}
 	var saa, sab, sbb, vaa, vab, vbb []float64
 	if gga {
-		saa, sab, sbb = make([]float64, np), make([]float64, np), make([]float64, np)
-		vaa, vab, vbb = make([]float64, np), make([]float64, np), make([]float64, np)
+		for k := range c.scratch {
+			c.scratch[k] = resize(c.scratch[k], np)
+		}
+		saa, sab, sbb = c.scratch[0], c.scratch[1], c.scratch[2]
+		vaa, vab, vbb = c.scratch[3], c.scratch[4], c.scratch[5]
 		for pt := 0; pt < np; pt++ {
 			ax, ay, az := grad[0][0][pt], grad[0][1][pt], grad[0][2][pt]
 			bx, by, bz := grad[1][0][pt], grad[1][1][pt], grad[1][2][pt]
@@ -477,5 +857,4 @@ func (p *Potential) potentialCoefficients(bd batchDensities, w []float64, np int
 			}
 		}
 	}
-	return e, a, b
 }

@@ -47,7 +47,9 @@
 //     transfer, which loses accuracy for separated high-l shells). Any l up
 //     to 10 (spherical) or beyond (Cartesian); computed serially, their cost
 //     being negligible next to the electron repulsion.
-//   - Electron-repulsion integrals and derivatives: see eri.go and deriv.go.
+//   - Electron-repulsion integrals and derivatives: see eri.go and deriv.go;
+//     the derivative classes with l ≤ 2 per centre (total l ≤ 6) are
+//     generated straight-line code (deriv_gen.go, go generate).
 //
 // Package-level tables (the Boys-function grid, the Cartesian recurrence
 // index table) are read-only data computed once at initialization; the

@@ -2,26 +2,51 @@ package scf
 
 import (
 	"context"
+	"fmt"
+	"math"
 	"runtime"
 	"sync"
 
+	"poise/energy/basis"
 	"poise/energy/integral"
 )
 
 // schwarzThreshold is the screening threshold on the Cauchy–Schwarz bound
 // |(ij|kl)| ≤ Q_ij·Q_kl below which a shell quartet is skipped (Häser &
 // Ahlrichs, J. Comput. Chem. 10, 104 (1989)). It is fixed, not density
-// dependent, so that in-core and direct builds agree exactly.
+// dependent, so that in-core and direct builds store the same quartets.
 const schwarzThreshold = 1e-12
 
-// quartetsPerChunk is the fixed amount of work (in shell quartets) handed to
-// one worker at a time. Each chunk accumulates into its own buffer and chunks
-// are summed in index order, so the result does not depend on the number of
-// threads.
-const quartetsPerChunk = 2048
+// densityThreshold is the density-weighted screening threshold of one
+// build: a quartet is skipped when Q_ij·Q_kl times the largest density
+// element it is contracted with (|D| over the shell pairs kl and ij for
+// Coulomb, ik, jl, il and jk for exchange) is below it (Häser & Ahlrichs,
+// J. Comput. Chem. 10, 104 (1989), eq. 10). Each skipped quartet changes a
+// Fock element by less than 4·densityThreshold.
+const densityThreshold = 1e-12
+
+// Work chunks: the canonical quartets are cut, in their fixed order, into
+// chunks of about equal work (integral count), at least minQuartetsPerChunk
+// quartets each and at most maxChunks of them. The cut depends only on the
+// basis, never on the thread count. Each chunk accumulates into its own
+// buffer and chunks are summed in index order, so the result does not
+// depend on the number of threads; bounding the number of chunks bounds the
+// cost of that reduction (2·n² additions per chunk and matrix), which would
+// otherwise grow like the number of quartets times n².
+const (
+	minQuartetsPerChunk = 2048
+	maxChunks           = 256
+)
+
+// fullRebuildEvery is the number of builds after which an incremental
+// build (of the density change since the previous build, Almlöf, Faegri &
+// Korsell, J. Comput. Chem. 3, 385 (1982)) is replaced by a full one, so
+// that screening errors do not accumulate.
+const fullRebuildEvery = 8
 
 // waveBytes bounds the memory of the per-chunk Coulomb and exchange buffers
-// held at once by a Fock build.
+// held at once by a Fock build; an eighth of the memory budget when that is
+// less (at least two buffer sets per thread are kept in any case).
 const waveBytes = 64 << 20
 
 // jkBuilder forms Coulomb and exchange matrices from densities, keeping the
@@ -45,6 +70,21 @@ type jkBuilder struct {
 
 	pool []jkBuffers // per-chunk accumulation buffers, reused between builds
 
+	waveBytes int64 // bound on the memory of the per-chunk buffers
+
+	ns      int       // shells
+	schwarz []float64 // ns×ns Schwarz bounds Q
+
+	// Incremental builds: the densities and matrices of the last build
+	// and the number of incremental builds since the last full one.
+	prevDens  [][]float64
+	prevJ     []float64
+	prevK     [][]float64
+	sinceFull int
+
+	// exact switches density-weighted screening and incremental builds
+	// off (only the fixed Schwarz screening stays), for tests.
+	exact bool
 }
 
 // jkBuffers are the Coulomb and exchange accumulators of one chunk.
@@ -56,48 +96,68 @@ type jkBuffers struct {
 // newJKBuilder screens shell quartets and, when memoryBytes allows, computes
 // and stores all surviving integral blocks.
 func newJKBuilder(ctx context.Context, b *integral.Basis, threads int, memoryBytes int64) (*jkBuilder, error) {
+	return newJKBuilderLog(ctx, b, threads, memoryBytes, nil)
+}
+
+// newJKBuilderLog is newJKBuilder with a receiver of notices (nil: none).
+func newJKBuilderLog(ctx context.Context, b *integral.Basis, threads int, memoryBytes int64, log func(string)) (*jkBuilder, error) {
 	if threads < 1 {
 		threads = runtime.GOMAXPROCS(0)
 	}
 	eri := integral.NewERI(b)
 	ns := eri.NumShells()
-	jk := &jkBuilder{b: b, eri: eri, n: b.NBF, threads: threads}
+	jk := &jkBuilder{b: b, eri: eri, n: b.NBF, threads: threads, ns: ns, waveBytes: waveBytes}
+	if memoryBytes > 0 && memoryBytes/8 < waveBytes {
+		jk.waveBytes = memoryBytes / 8
+	}
 	q := eri.SchwarzMatrix()
+	jk.schwarz = q
 	nf := func(s int) int { return b.Shells[s].NumFunctions() }
-	// visit calls fn for every canonical quartet that survives screening.
-	visit := func(fn func(i, j, k, l int)) {
-		for i := 0; i < ns; i++ {
-			for j := 0; j <= i; j++ {
-				qij := q[i*ns+j]
-				ij := i*(i+1)/2 + j
-				for k := 0; k <= i; k++ {
-					lmax := k
-					if k == i {
-						lmax = j
-					}
-					for l := 0; l <= lmax; l++ {
-						if k*(k+1)/2+l > ij || qij*q[k*ns+l] < schwarzThreshold {
-							continue
-						}
-						fn(i, j, k, l)
-					}
-				}
+	// Significant shell pairs i ≥ j in canonical order (index i(i+1)/2+j):
+	// a pair whose bound times the largest bound is below the threshold
+	// takes part in no quartet.
+	qmax := 0.0
+	for _, v := range q {
+		qmax = max(qmax, v)
+	}
+	var pairs []int32 // i, j per pair
+	var pairQ []float64
+	for i := 0; i < ns; i++ {
+		for j := 0; j <= i; j++ {
+			if qij := q[i*ns+j]; qij*qmax >= schwarzThreshold {
+				pairs = append(pairs, int32(i), int32(j))
+				pairQ = append(pairQ, qij)
 			}
 		}
 	}
+	// Canonical quartets (ij) ≥ (kl) that survive screening, in the order
+	// of (ij), then (kl).
 	count := 0
-	visit(func(_, _, _, _ int) { count++ })
-	jk.quartets = make([]int32, 0, 4*count)
-	var storeWords int64
-	visit(func(i, j, k, l int) {
-		jk.quartets = append(jk.quartets, int32(i), int32(j), int32(k), int32(l))
-		storeWords += int64(nf(i) * nf(j) * nf(k) * nf(l))
-	})
-	nq := len(jk.quartets) / 4
-	for s := 0; s < nq; s += quartetsPerChunk {
-		jk.chunks = append(jk.chunks, s)
+	for p := range pairQ {
+		for r := 0; r <= p; r++ {
+			if pairQ[p]*pairQ[r] >= schwarzThreshold {
+				count++
+			}
+		}
 	}
-	jk.chunks = append(jk.chunks, nq)
+	jk.quartets = make([]int32, 0, 4*count)
+	weights := make([]int64, 0, count) // integrals per quartet, to cut chunks of equal work
+	var storeWords int64
+	for p := range pairQ {
+		i, j := pairs[2*p], pairs[2*p+1]
+		nij := nf(int(i)) * nf(int(j))
+		for r := 0; r <= p; r++ {
+			if pairQ[p]*pairQ[r] < schwarzThreshold {
+				continue
+			}
+			k, l := pairs[2*r], pairs[2*r+1]
+			jk.quartets = append(jk.quartets, i, j, k, l)
+			w := int64(nij * nf(int(k)) * nf(int(l)))
+			weights = append(weights, w)
+			storeWords += w
+		}
+	}
+	jk.chunks = cutChunks(weights, storeWords)
 
 	// Keep the integrals if they take at most half of the memory budget;
 	// the rest is left for matrices, buffers and the garbage collector.
@@ -105,8 +165,41 @@ func newJKBuilder(ctx context.Context, b *integral.Basis, threads int, memoryByt
 		if err := jk.fillInCore(ctx, storeWords); err != nil {
 			return nil, err
 		}
+	} else if log != nil && memoryBytes > 0 && storeWords > 0 {
+		log(fmt.Sprintf("the electron-repulsion integrals need %s, more than half of the memory budget of %s (--memory): computing them anew in every SCF iteration (integral-direct)",
+			mebibytes(storeWords*8), mebibytes(memoryBytes)))
 	}
 	return jk, nil
+}
+
+// mebibytes formats a size in MiB.
+func mebibytes(b int64) string {
+	m := float64(b) / (1 << 20)
+	if m < 10 {
+		return fmt.Sprintf("%.1f MiB", m)
+	}
+	return fmt.Sprintf("%.0f MiB", m)
+}
+
+// cutChunks cuts quartets of the given weights (in order) into chunks of
+// about equal total weight: as many as the quartet count allows with
+// minQuartetsPerChunk each, at most maxChunks. It returns the start of
+// every chunk plus the end.
+func cutChunks(weights []int64, total int64) []int {
+	nq := len(weights)
+	nc := min(maxChunks, max(1, (nq+minQuartetsPerChunk-1)/minQuartetsPerChunk))
+	chunks := []int{0}
+	var acc int64
+	c := 1
+	for q := 0; q < nq && c < nc; q++ {
+		acc += weights[q]
+		// Close chunk c−1 once its share of the work is reached.
+		if acc*int64(nc) >= total*int64(c) && q+1 < nq {
+			chunks = append(chunks, q+1)
+			c++
+		}
+	}
+	return append(chunks, nq)
 }
 
 // InCore reports whether the integrals are kept in memory.
@@ -176,7 +269,64 @@ func (jk *jkBuilder) parallelChunks(ctx context.Context, fn func(w *integral.ERI
 // (one density for restricted, two for unrestricted). dens are n×n
 // row-major symmetric matrices; J uses their sum. With wantK false only J
 // is formed.
+//
+// Successive builds of one SCF are incremental: the matrices of the
+// density change since the previous build are added to the previous
+// matrices; the change shrinks as the SCF converges, and density-weighted
+// screening skips ever more quartets. Every fullRebuildEvery builds the
+// matrices are built from the full densities again.
 func (jk *jkBuilder) build(ctx context.Context, dens [][]float64, wantK bool) (J []float64, K [][]float64, err error) {
+	nk := 0
+	if wantK {
+		nk = len(dens)
+	}
+	incremental := !jk.exact && jk.prevDens != nil && len(jk.prevDens) == len(dens) && len(jk.prevK) == nk &&
+		jk.sinceFull < fullRebuildEvery
+	use := dens
+	if incremental {
+		use = make([][]float64, len(dens))
+		for s, d := range dens {
+			use[s] = make([]float64, len(d))
+			for i, v := range d {
+				use[s][i] = v - jk.prevDens[s][i]
+			}
+		}
+	}
+	J, K, err = jk.buildFrom(ctx, use, wantK)
+	if err != nil {
+		return nil, nil, err
+	}
+	if incremental {
+		for i := range J {
+			J[i] += jk.prevJ[i]
+		}
+		for s := range K {
+			for i := range K[s] {
+				K[s][i] += jk.prevK[s][i]
+			}
+		}
+		jk.sinceFull++
+	} else {
+		jk.sinceFull = 0
+	}
+	jk.prevDens = make([][]float64, len(dens))
+	for s, d := range dens {
+		jk.prevDens[s] = append([]float64(nil), d...)
+	}
+	jk.prevJ = append(jk.prevJ[:0], J...)
+	jk.prevK = make([][]float64, len(K))
+	for s := range K {
+		jk.prevK[s] = append([]float64(nil), K[s]...)
+	}
+	return J, K, nil
+}
+
+// reset makes the next build a full one.
+func (jk *jkBuilder) reset() { jk.prevDens, jk.prevJ, jk.prevK, jk.sinceFull = nil, nil, nil, 0 }
+
+// buildFrom forms J and K of the given densities, without reference to
+// earlier builds.
+func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool) (J []float64, K [][]float64, err error) {
 	n := jk.n
 	nd := len(dens)
 	dtot := dens[0]
@@ -192,12 +342,13 @@ func (jk *jkBuilder) build(ctx context.Context, dens [][]float64, wantK bool) (J
 	if wantK {
 		nk = nd
 	}
+	dmax := jk.pairMax(dtot, dens[:nk])
 	// One buffer set per chunk in flight; chunks are reduced in index order.
 	nc := len(jk.chunks) - 1
 	// Chunks in flight at once: as many buffer sets as fit in
 	// waveBytes (at least 2·threads), so that workers rarely wait for the
 	// in-order reduction. The grouping never changes the result.
-	wave := max(2*jk.threads, int(waveBytes/int64(8*n*n*(1+nk))))
+	wave := max(2*jk.threads, int(jk.waveBytes/int64(8*n*n*(1+nk))))
 	if wave > nc {
 		wave = nc
 	}
@@ -252,7 +403,7 @@ func (jk *jkBuilder) build(ctx context.Context, dens [][]float64, wantK bool) (J
 					for _, k := range bf.k {
 						clear(k)
 					}
-					jk.contractChunk(w, c, dtot, dens[:nk], bf.j, bf.k)
+					jk.contractChunk(w, c, dtot, dens[:nk], dmax, bf.j, bf.k)
 				}
 			}()
 		}
@@ -260,23 +411,72 @@ func (jk *jkBuilder) build(ctx context.Context, dens [][]float64, wantK bool) (J
 		if err := ctx.Err(); err != nil {
 			return nil, nil, err
 		}
-		for c := start; c < end; c++ {
-			bf := &pool[c-start]
-			for i, v := range bf.j {
-				J[i] += v
-			}
-			for s := range bf.k {
-				for i, v := range bf.k[s] {
-					K[s][i] += v
+		// Reduce in chunk order, the elements split among the threads.
+		jk.parallelRange(n*n, func(lo, hi int) {
+			for c := start; c < end; c++ {
+				bf := &pool[c-start]
+				for i, v := range bf.j[lo:hi] {
+					J[lo+i] += v
+				}
+				for s := range bf.k {
+					ks := K[s][lo:hi]
+					for i, v := range bf.k[s][lo:hi] {
+						ks[i] += v
+					}
 				}
 			}
-		}
+		})
 	}
 	symmetrize(J, n)
 	for s := range K {
 		symmetrize(K[s], n)
 	}
 	return J, K, nil
+}
+
+// pairMax returns the ns×ns matrix of the largest |D| element over each
+// shell pair, taken over the total density and the exchange densities.
+func (jk *jkBuilder) pairMax(dtot []float64, dens [][]float64) []float64 {
+	n, ns := jk.n, jk.ns
+	offs := jk.b.Offsets
+	out := make([]float64, ns*ns)
+	for a := 0; a < ns; a++ {
+		na := jk.b.Shells[a].NumFunctions()
+		for b := 0; b <= a; b++ {
+			nb := jk.b.Shells[b].NumFunctions()
+			m := 0.0
+			for i := offs[a]; i < offs[a]+na; i++ {
+				for j := offs[b]; j < offs[b]+nb; j++ {
+					m = max(m, math.Abs(dtot[i*n+j]))
+					for _, d := range dens {
+						m = max(m, math.Abs(d[i*n+j]))
+					}
+				}
+			}
+			out[a*ns+b], out[b*ns+a] = m, m
+		}
+	}
+	return out
+}
+
+// parallelRange calls fn on up to jk.threads disjoint ranges covering
+// [0, n), concurrently.
+func (jk *jkBuilder) parallelRange(n int, fn func(lo, hi int)) {
+	parts := min(jk.threads, max(1, n/4096))
+	if parts <= 1 {
+		fn(0, n)
+		return
+	}
+	var wg sync.WaitGroup
+	for p := 0; p < parts; p++ {
+		lo, hi := p*n/parts, (p+1)*n/parts
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			fn(lo, hi)
+		}()
+	}
+	wg.Wait()
 }
 
 // symmetrize replaces m by (m + mᵀ)/2.
@@ -295,11 +495,21 @@ func symmetrize(m []float64, n int) {
 // index permutations it stands for) adds s/2·v·D to two Coulomb elements and
 // s/4·v·D to four exchange elements; symmetrizing the sums afterwards gives
 // J and K exactly (the scheme of the libint2 Hartree–Fock example).
-func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float64, dens [][]float64, jm []float64, km [][]float64) {
+func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float64, dens [][]float64, dmax []float64, jm []float64, km [][]float64) {
 	n := jk.n
+	ns := jk.ns
 	offs := jk.b.Offsets
+	wantK := len(dens) > 0
 	for q := jk.chunks[c]; q < jk.chunks[c+1]; q++ {
 		si, sj, sk, sl := int(jk.quartets[4*q]), int(jk.quartets[4*q+1]), int(jk.quartets[4*q+2]), int(jk.quartets[4*q+3])
+		// Density-weighted screening.
+		dm := max(dmax[si*ns+sj], dmax[sk*ns+sl])
+		if wantK {
+			dm = max(dm, dmax[si*ns+sk], dmax[sj*ns+sl], dmax[si*ns+sl], dmax[sj*ns+sk])
+		}
+		if !jk.exact && jk.schwarz[si*ns+sj]*jk.schwarz[sk*ns+sl]*dm < densityThreshold {
+			continue
+		}
 		var v []float64
 		if jk.incore != nil {
 			v = jk.incore[jk.offsets[q]:jk.offsets[q+1]]
@@ -353,4 +563,38 @@ func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float
 			}
 		}
 	}
+}
+
+// JKBuilder forms the Coulomb and exchange matrices of one basis, the
+// two-electron part of a Fock matrix. Run uses the same code inside; the
+// type is exported so that benchmarks can time a Fock build alone.
+type JKBuilder struct{ jk *jkBuilder }
+
+// NewJKBuilder screens the shell quartets of shells and, when they fit in
+// half of opt.MemoryBytes, computes and stores the integrals. Only
+// opt.Threads and opt.MemoryBytes are used (defaults as for Run).
+func NewJKBuilder(ctx context.Context, shells []basis.Shell, opt Options) (*JKBuilder, error) {
+	opt = withDefaults(opt)
+	jk, err := newJKBuilderLog(ctx, integral.NewBasis(shells), opt.Threads, opt.MemoryBytes, opt.Log)
+	if err != nil {
+		return nil, err
+	}
+	return &JKBuilder{jk: jk}, nil
+}
+
+// InCore reports whether the integrals are kept in memory.
+func (b *JKBuilder) InCore() bool { return b.jk.InCore() }
+
+// Build returns the Coulomb matrix of the total density and the exchange
+// matrix of every density in dens (n×n row-major, symmetric; one total
+// density for restricted, α and β for unrestricted). Every call is a full
+// build, never an incremental one.
+func (b *JKBuilder) Build(ctx context.Context, dens [][]float64) (J []float64, K [][]float64, err error) {
+	for _, d := range dens {
+		if len(d) != b.jk.n*b.jk.n {
+			return nil, nil, fmt.Errorf("scf: density has %d elements, want %d×%d", len(d), b.jk.n, b.jk.n)
+		}
+	}
+	b.jk.reset()
+	return b.jk.build(ctx, dens, true)
 }

@@ -53,6 +53,16 @@ type Options struct {
 	Guess             *State  // warm start from an earlier density (same basis)
 	// Progress, if set, is called after every iteration.
 	Progress func(Iteration)
+	// StartGuess chooses the starting density when Guess is nil (default
+	// the superposition of atomic densities).
+	StartGuess GuessKind
+	// Stability asks for the restricted → unrestricted (and, for
+	// unrestricted results, internal) stability check of the converged
+	// wavefunction, and optionally for following an instability.
+	Stability StabilityMode
+	// Log receives notices about the course of the calculation (fallbacks,
+	// switches); nil discards them.
+	Log func(msg string)
 }
 
 // Iteration describes one SCF cycle, for progress display.
@@ -101,6 +111,22 @@ type Result struct {
 	MullikenCharges []float64
 	FinalGradient   float64
 	Wall            time.Duration
+
+	// Guess names the starting density ("atomic densities", "core
+	// Hamiltonian", "Hückel", "previous density").
+	Guess string
+	// Fallbacks lists, in order, every switch of the convergence ladder
+	// and every stability-following step (the same notices go to
+	// Options.Log).
+	Fallbacks []string
+	// Stability is the outcome of the stability check of the returned
+	// wavefunction (nil when not asked for); Followed lists the checks of
+	// earlier, unstable solutions that were followed to reach it.
+	Stability *Stability
+	Followed  []Stability
+
+	// restarted: the fallback ladder restarted from the alternative guess.
+	restarted bool
 }
 
 // State returns the warm-start state of the result.
@@ -114,182 +140,375 @@ func (r *Result) State() *State {
 
 // Run performs a restricted or unrestricted Hartree–Fock (or Kohn–Sham, with
 // opt.XC) calculation for mol in the given shells. mol must have its spin
-// set (molecule.SetSpin). On failure to converge it returns the last result
-// together with an error wrapping ErrNotConverged.
+// set (molecule.SetSpin). Convergence is helped by the fallback ladder
+// described in the package documentation; every switch is reported through
+// opt.Log and listed in Result.Fallbacks. With opt.Stability set, the
+// converged wavefunction is checked (and, for StabilityFollow, followed to a
+// stable solution; see CheckStability). On failure to converge it returns
+// the last result together with an error wrapping ErrNotConverged.
+//
+// With opt.StabilityFollow and a cold start (opt.Guess nil), an open-shell
+// calculation (Nα ≠ Nβ) is also converged (and followed) from the
+// alternative starting guess, and the lower stable solution is returned
+// (the second-start search of the package documentation).
 func Run(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell, opt Options) (*Result, error) {
-	start := time.Now()
-	opt = withDefaults(opt)
+	res, err := runLadder(ctx, mol, shells, opt)
+	if err != nil || opt.Stability == StabilityOff {
+		return res, err
+	}
+	res, err = stabilityStage(ctx, mol, shells, opt, res)
+	if err != nil || !wantSecondStart(mol, opt, res) {
+		return res, err
+	}
+	return secondStart(ctx, mol, shells, opt, res)
+}
+
+// wantSecondStart says whether the second-start search runs for res: in
+// follow mode, from a cold start, for open shells. Closed shells and warm
+// starts (relaxations, finite differences) are left alone.
+func wantSecondStart(mol *molecule.Molecule, opt Options, res *Result) bool {
+	if opt.Stability != StabilityFollow || opt.Guess != nil || res == nil || !res.Converged {
+		return false
+	}
+	return mol.NumAlpha() != mol.NumBeta()
+}
+
+// secondStart converges the calculation of first again from the
+// alternative starting guess, follows it through the stability check, and
+// returns the lower of the two stable solutions. Its notices are recorded
+// in the returned result and sent to opt.Log.
+func secondStart(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell, opt Options, first *Result) (*Result, error) {
+	note := func(r *Result, format string, args ...any) {
+		msg := fmt.Sprintf(format, args...)
+		r.Fallbacks = append(r.Fallbacks, msg)
+		if opt.Log != nil {
+			opt.Log(msg)
+		}
+	}
+	alt := alternativeGuess(opt.StartGuess)
+	if first.restarted {
+		note(first, "second-start search (open shell): the fallback ladder already restarted from the %s guess; not repeated", alt)
+		return first, nil
+	}
+	note(first, "second-start search (open shell): converging again from the %s guess", alt)
+	o2 := opt
+	o2.StartGuess = alt
+	o2.Log = nil // its notices are copied below, in order
+	second, err := runLadder(ctx, mol, shells, o2)
+	if err == nil && math.Abs(second.EnergyHartree-first.EnergyHartree) <= secondStartMargin {
+		// The same solution (or a symmetry-equivalent one): its stability
+		// is that of the first, already checked.
+		for _, f := range second.Fallbacks {
+			note(first, "second-start search: %s", f)
+		}
+		note(first, "second-start search: the %s guess converges to the same solution (%+.2e Eh) in %d iterations; keeping the first",
+			alt, second.EnergyHartree-first.EnergyHartree, second.Iterations)
+		return first, nil
+	}
+	if err == nil {
+		second, err = stabilityStage(ctx, mol, shells, o2, second)
+	}
+	if err != nil {
+		if ctx.Err() != nil {
+			return first, ctx.Err()
+		}
+		if second != nil {
+			for _, f := range second.Fallbacks {
+				note(first, "second-start search: %s", f)
+			}
+		}
+		note(first, "second-start search: the %s guess did not lead to a solution (%v); keeping %.10f Eh", alt, err, first.EnergyHartree)
+		return first, nil
+	}
+	for _, f := range second.Fallbacks {
+		note(first, "second-start search: %s", f)
+	}
+	firstOK := first.Stability != nil && first.Stability.Stable
+	secondOK := second.Stability != nil && second.Stability.Stable
+	if secondOK && (!firstOK || second.EnergyHartree < first.EnergyHartree-secondStartMargin) {
+		second.Fallbacks = first.Fallbacks
+		note(second, "second-start search: the %s guess leads to a lower stable solution, %.10f Eh (%.2e Eh below %.10f Eh from the %s guess); keeping it",
+			alt, second.EnergyHartree, second.EnergyHartree-first.EnergyHartree, first.EnergyHartree, first.Guess)
+		return second, nil
+	}
+	note(first, "second-start search: the %s guess ends at %.10f Eh (%+.2e Eh); keeping %.10f Eh from the %s guess",
+		alt, second.EnergyHartree, second.EnergyHartree-first.EnergyHartree, first.EnergyHartree, first.Guess)
+	return first, nil
+}
+
+// secondStartMargin (Eh) is how much lower the second start's solution must
+// be to replace the first: below it the two are the same solution within
+// the convergence thresholds.
+const secondStartMargin = 1e-8
+
+// problem is what every SCF iteration of one calculation shares: the basis,
+// its one-electron matrices, the orthogonalizer and the Fock builder.
+type problem struct {
+	mol          *molecule.Molecule
+	shells       []basis.Shell
+	b            *integral.Basis
+	n, m         int
+	s, h, x      []float64
+	jk           *jkBuilder
+	unrestricted bool
+	na, nb       int
+	nspin        int
+	occ          [][]float64
+	ax           float64
+	dropped      int
+}
+
+// newProblem sets up the basis, the one-electron matrices and the Fock
+// builder for a calculation.
+func newProblem(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell, opt Options) (*problem, error) {
 	na, nb := mol.NumAlpha(), mol.NumBeta()
 	if na+nb == 0 {
 		return nil, fmt.Errorf("the molecule has no electrons (charge %+d): nothing to compute", mol.Charge)
 	}
-	unrestricted := opt.Unrestricted || na != nb
-	b := integral.NewBasis(shells)
-	n := b.NBF
+	p := &problem{mol: mol, shells: shells, na: na, nb: nb}
+	p.unrestricted = opt.Unrestricted || na != nb
+	p.b = integral.NewBasis(shells)
+	n := p.b.NBF
+	p.n = n
 	if na > n {
 		return nil, fmt.Errorf("%d α electrons do not fit in %d basis functions", na, n)
 	}
-	s := b.Overlap()
-	h := b.Kinetic()
+	p.s = p.b.Overlap()
+	p.h = p.b.Kinetic()
 	charges, centers := nuclei(mol)
-	v := b.Nuclear(charges, centers)
-	for i := range h {
-		h[i] += v[i]
+	v := p.b.Nuclear(charges, centers)
+	for i := range p.h {
+		p.h[i] += v[i]
 	}
-	x, m, dropped, err := orthogonalizer(s, n, opt.LinearDependence)
+	var err error
+	p.x, p.m, p.dropped, err = orthogonalizer(p.s, n, opt.LinearDependence)
 	if err != nil {
 		return nil, err
 	}
-	if na > m {
-		return nil, fmt.Errorf("%d α electrons do not fit in %d linearly independent functions", na, m)
+	if na > p.m {
+		return nil, fmt.Errorf("%d α electrons do not fit in %d linearly independent functions", na, p.m)
 	}
-	jk, err := newJKBuilder(ctx, b, opt.Threads, opt.MemoryBytes)
+	p.jk, err = newJKBuilderLog(ctx, p.b, opt.Threads, opt.MemoryBytes, opt.Log)
 	if err != nil {
 		return nil, err
 	}
+	p.nspin = 1
+	if p.unrestricted {
+		p.nspin = 2
+	}
+	p.occ = occupations(p.unrestricted, na, nb)
+	p.ax = 1.0
+	if opt.XC != nil {
+		p.ax = opt.XC.ExactExchange()
+	}
+	return p, nil
+}
 
-	nspin := 1
-	if unrestricted {
-		nspin = 2
+// Rungs of the fallback ladder (see doc.go). When the last one stalls, the
+// SCF restarts once from the other guess and climbs down the ladder again.
+const (
+	rungDIIS       = iota // Pulay DIIS
+	rungLevelShift        // DIIS restarted with a virtual-orbital level shift
+	rungADIIS             // ADIIS+DIIS blend, no level shift
+)
+
+// Stall windows: a rung is given up when the orbital gradient has not
+// improved tenfold over this many iterations.
+const (
+	stallDIIS  = 8
+	stallLater = 12
+)
+
+// runLadder is one SCF calculation (without the stability stage).
+func runLadder(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell, opt Options) (*Result, error) {
+	start := time.Now()
+	opt = withDefaults(opt)
+	p, err := newProblem(ctx, mol, shells, opt)
+	if err != nil {
+		return nil, err
 	}
-	occ := occupations(unrestricted, na, nb)
+	n, m, nspin := p.n, p.m, p.nspin
+	res := &Result{
+		Unrestricted:     p.unrestricted,
+		NuclearRepulsion: mol.NuclearRepulsion(),
+		NumAlpha:         p.na,
+		NumBeta:          p.nb,
+		NBF:              n,
+		NMO:              m,
+		NumDropped:       p.dropped,
+		InCore:           p.jk.InCore(),
+	}
+	note := func(format string, args ...any) {
+		msg := fmt.Sprintf(format, args...)
+		res.Fallbacks = append(res.Fallbacks, msg)
+		if opt.Log != nil {
+			opt.Log(msg)
+		}
+	}
 
 	// Starting density.
 	var dens [][]float64
+	guess := opt.StartGuess
 	if g := opt.Guess; g != nil && g.NBF == n && len(g.Density) > 0 {
 		dens = adaptDensity(g.Density, nspin)
+		res.Guess = "previous density"
 	} else {
-		dsad, err := atomicDensityGuess(ctx, mol, shells, b, opt)
+		dens, err = startingDensity(ctx, p, guess, opt)
 		if err != nil {
 			return nil, fmt.Errorf("starting guess: %w", err)
 		}
-		dens = adaptDensity([][]float64{dsad}, nspin)
-		if unrestricted && na != nb {
-			// Give the α and β guesses their electron counts.
-			ne := float64(na + nb)
-			for i := range dens[0] {
-				dens[0][i] *= 2 * float64(na) / ne
-				dens[1][i] *= 2 * float64(nb) / ne
-			}
-		}
+		res.Guess = guess.String()
 	}
 
-	res := &Result{
-		Unrestricted:     unrestricted,
-		NuclearRepulsion: mol.NuclearRepulsion(),
-		NumAlpha:         na,
-		NumBeta:          nb,
-		NBF:              n,
-		NMO:              m,
-		NumDropped:       dropped,
-		InCore:           jk.InCore(),
-	}
-	ax := 1.0
-	if opt.XC != nil {
-		ax = opt.XC.ExactExchange()
-	}
 	acc := newDIIS(defaultDIISVectors)
+	ad := newADIIS(defaultDIISVectors)
 	var focks [][]float64
-	var coefs [][]float64
-	var energies [][]float64
 	prevE := 0.0
 	bestErr := math.Inf(1)
 	bestAt := 0
-	shift := false
+	rung := rungDIIS
+	restarted := false // the restart from the other guess has been made
+	rungStart := 1     // first iteration of the run (or since the restart)
 	for it := 1; it <= opt.MaxIterations; it++ {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
 		var e float64
-		focks, e, err = fockAndEnergy(ctx, jk, h, dens, ax, opt.XC, unrestricted, res)
+		focks, e, err = fockAndEnergy(ctx, p.jk, p.h, dens, p.ax, opt.XC, p.unrestricted, res)
 		if err != nil {
 			return nil, err
 		}
 		e += res.NuclearRepulsion
-		// Orbital gradient FDS − SDF in the orthonormal basis.
-		errv := make([]float64, 0, nspin*m*m)
-		maxErr := 0.0
-		for sp := 0; sp < nspin; sp++ {
-			fds := mul(mul(focks[sp], n, n, dens[sp], n), n, n, s, n)
-			comm := make([]float64, n*n)
-			for i := 0; i < n; i++ {
-				for j := 0; j < n; j++ {
-					comm[i*n+j] = fds[i*n+j] - fds[j*n+i]
-				}
-			}
-			ce := transform(x, n, m, comm)
-			for _, v := range ce {
-				if a := math.Abs(v); a > maxErr {
-					maxErr = a
-				}
-			}
-			errv = append(errv, ce...)
-		}
+		errv, maxErr := orbitalGradient(p, focks, dens)
 		change := e - prevE
+		if it == rungStart {
+			change = e
+		}
 		res.EnergyHartree = e
 		res.Iterations = it
 		res.FinalGradient = maxErr
+		shift := rung == rungLevelShift
 		if opt.Progress != nil {
 			opt.Progress(Iteration{Number: it, EnergyHartree: e, Change: change, Gradient: maxErr, LevelShift: shift})
 		}
-		if it > 1 && math.Abs(change) < opt.EnergyTolerance && maxErr < opt.GradientTolerance {
+		if it > rungStart && math.Abs(change) < opt.EnergyTolerance && maxErr < opt.GradientTolerance {
 			res.Converged = true
 			break
 		}
 		prevE = e
-		// Stall detection: no tenfold improvement of the orbital gradient in
-		// 8 iterations switches on a level shift and restarts DIIS.
-		if maxErr < bestErr/10 || it == 1 {
-			bestErr, bestAt = maxErr, it
-		} else if !shift && it-bestAt >= 8 {
-			shift = true
-			acc.reset()
-			bestErr, bestAt = maxErr, it
+		// Stall detection: no tenfold improvement of the orbital gradient
+		// within the rung's window moves one rung down the ladder.
+		window := stallDIIS
+		if rung != rungDIIS {
+			window = stallLater
 		}
+		if maxErr < bestErr/10 || it == rungStart {
+			bestErr, bestAt = maxErr, it
+		} else if it-bestAt >= window && !(restarted && rung == rungADIIS) {
+			acc.reset()
+			ad.reset()
+			bestErr, bestAt = maxErr, it
+			if rung == rungADIIS {
+				// Last rung: a fresh start from the other guess, which
+				// climbs down the ladder again from plain DIIS (once).
+				alt := alternativeGuess(guess)
+				note("SCF iteration %d: ADIIS+DIIS stalled (orbital gradient %.1e, energy %.8f Eh); restarting from the %s guess with DIIS", it, maxErr, e, alt)
+				dens, err = startingDensity(ctx, p, alt, opt)
+				if err != nil {
+					return nil, fmt.Errorf("restart guess: %w", err)
+				}
+				rung, restarted = rungDIIS, true
+				res.restarted = true
+				rungStart = it + 1
+				continue
+			}
+			rung++
+			switch rung {
+			case rungLevelShift:
+				note("SCF iteration %d: DIIS stalled (orbital gradient %.1e); level shift %.2f Eh on, DIIS restarted", it, maxErr, levelShiftHartree)
+			case rungADIIS:
+				note("SCF iteration %d: level-shifted DIIS stalled (orbital gradient %.1e); switching to ADIIS+DIIS", it, maxErr)
+			}
+		}
+		shift = rung == rungLevelShift
 		acc.push(focks, errv)
 		use := focks
-		if it > 1 {
+		if rung >= rungADIIS {
+			ad.push(dens, focks)
+			use = blendADIIS(acc, ad, focks, maxErr)
+		} else if it > rungStart {
 			if ex := acc.extrapolate(); ex != nil {
 				use = ex
 			}
 		}
-		coefs = make([][]float64, nspin)
-		energies = make([][]float64, nspin)
 		for sp := 0; sp < nspin; sp++ {
-			fo := transform(x, n, m, use[sp])
-			if shift && it > 1 {
-				applyLevelShift(fo, m, x, s, dens[sp], n, levelShiftHartree, len(occ[sp]))
+			fo := transform(p.x, n, m, use[sp])
+			if shift && it > rungStart {
+				applyLevelShift(fo, m, p.x, p.s, dens[sp], n, levelShiftHartree, len(p.occ[sp]))
 			}
-			vals, vecs, err := eigenSym(fo, m)
+			_, vecs, err := eigenSym(fo, m)
 			if err != nil {
 				return nil, err
 			}
-			coefs[sp] = mul(x, n, m, vecs, m)
-			energies[sp] = vals
-			dens[sp] = densityFromOrbitals(coefs[sp], n, m, occ[sp])
+			dens[sp] = densityFromOrbitals(mul(p.x, n, m, vecs, m), n, m, p.occ[sp])
 		}
 	}
 	// Final orbitals from the last (unshifted, unextrapolated) Fock matrices.
-	coefs = make([][]float64, nspin)
-	energies = make([][]float64, nspin)
-	for sp := 0; sp < nspin; sp++ {
-		vals, vecs, err := eigenSym(transform(x, n, m, focks[sp]), m)
-		if err != nil {
-			return nil, err
-		}
-		coefs[sp] = mul(x, n, m, vecs, m)
-		energies[sp] = vals
+	if err := p.finish(res, focks, dens); err != nil {
+		return nil, err
 	}
-	res.OrbitalEnergies = energies
-	res.Coefficients = coefs
-	res.Density = dens
-	analyze(res, mol, b, s)
 	res.Wall = time.Since(start)
 	if !res.Converged {
 		return res, fmt.Errorf("%w in %d iterations (last energy %.10f Eh, orbital gradient %.2e, energy change above %.0e Eh or gradient above %.0e)",
 			ErrNotConverged, res.Iterations, res.EnergyHartree, res.FinalGradient, opt.EnergyTolerance, opt.GradientTolerance)
 	}
 	return res, nil
+}
+
+// orbitalGradient returns FDS − SDF in the orthonormal basis for every spin
+// (concatenated) and its largest element.
+func orbitalGradient(p *problem, focks, dens [][]float64) ([]float64, float64) {
+	n, m := p.n, p.m
+	errv := make([]float64, 0, p.nspin*m*m)
+	maxErr := 0.0
+	for sp := 0; sp < p.nspin; sp++ {
+		fds := mul(mul(focks[sp], n, n, dens[sp], n), n, n, p.s, n)
+		comm := make([]float64, n*n)
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				comm[i*n+j] = fds[i*n+j] - fds[j*n+i]
+			}
+		}
+		ce := transform(p.x, n, m, comm)
+		for _, v := range ce {
+			if a := math.Abs(v); a > maxErr {
+				maxErr = a
+			}
+		}
+		errv = append(errv, ce...)
+	}
+	return errv, maxErr
+}
+
+// finish diagonalizes the final Fock matrices and fills the orbitals,
+// density and properties of res.
+func (p *problem) finish(res *Result, focks, dens [][]float64) error {
+	n, m := p.n, p.m
+	coefs := make([][]float64, p.nspin)
+	energies := make([][]float64, p.nspin)
+	for sp := 0; sp < p.nspin; sp++ {
+		vals, vecs, err := eigenSym(transform(p.x, n, m, focks[sp]), m)
+		if err != nil {
+			return err
+		}
+		coefs[sp] = mul(p.x, n, m, vecs, m)
+		energies[sp] = vals
+	}
+	res.OrbitalEnergies = energies
+	res.Coefficients = coefs
+	res.Density = dens
+	analyze(res, p.mol, p.b, p.s)
+	return nil
 }
 
 func withDefaults(o Options) Options {

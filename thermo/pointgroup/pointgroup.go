@@ -193,6 +193,35 @@ func (d *detector) linearAxis() (vec, bool) {
 	return u, true
 }
 
+// linearInversion reports whether a molecule found linear along u maps
+// onto itself under inversion, comparing the atoms' positions along the
+// axis only: the molecule counts as linear because every atom lies within
+// the tolerance of the axis, so an offset across it (an atom 0.007 Å off a
+// CO2 bent by 1°, mapped to 0.014 Å from its image) must not decide
+// between D∞h and C∞v. perm, if not nil, receives the image of each atom.
+func (d *detector) linearInversion(u vec, perm []int) bool {
+	for i := range d.used {
+		d.used[i] = false
+	}
+	for i, p := range d.pos {
+		h := -dot(p, u)
+		best, bestD := -1, d.tol
+		for _, j := range d.byKind[d.kind[i]] {
+			if dd := math.Abs(dot(d.pos[j], u) - h); dd < bestD {
+				best, bestD = j, dd
+			}
+		}
+		if best < 0 || d.used[best] {
+			return false
+		}
+		d.used[best] = true
+		if perm != nil {
+			perm[i] = best
+		}
+	}
+	return true
+}
+
 // axisOrder returns the highest n ≥ 2 for which Cn about u maps the
 // molecule onto itself, or 0.
 func (d *detector) axisOrder(u vec) int {
@@ -308,10 +337,9 @@ func (d *detector) detect() (*Result, error) {
 		r.Symbol, r.SymmetryNumber = "Kh", 1
 		return r, nil
 	}
-	inv := inversion()
-	r.Inversion = d.maps(&inv, nil)
 	if u, ok := d.linearAxis(); ok {
 		r.Linear, r.MainAxis = true, u
+		r.Inversion = d.linearInversion(u, nil)
 		if r.Inversion {
 			r.Symbol, r.SymmetryNumber = "D∞h", 2
 		} else {
@@ -319,6 +347,8 @@ func (d *detector) detect() (*Result, error) {
 		}
 		return r, nil
 	}
+	inv := inversion()
+	r.Inversion = d.maps(&inv, nil)
 	candAxes, candNormals := d.candidates()
 	for _, u := range candAxes {
 		known := false

@@ -53,9 +53,8 @@ func (d *detector) symmetrize(r *Result) ([]vec, error) {
 			out[i] = scale(dot(p, u), u)
 		}
 		if r.Inversion {
-			inv := inversion()
 			perm := make([]int, n)
-			if !d.maps(&inv, perm) {
+			if !d.linearInversion(u, perm) {
 				return nil, errors.New("inversion lost")
 			}
 			avg := make([]vec, n)

@@ -14,6 +14,11 @@
 // module root:
 //
 //	go run ./energy/integral/internal/gen -o energy/integral/eri_gen.go
+//
+// With -deriv it writes energy/integral/deriv_gen.go instead, the
+// first-derivative classes (see deriv.go):
+//
+//	go run ./energy/integral/internal/gen -deriv energy/integral/deriv_gen.go
 package main
 
 import (
@@ -534,7 +539,15 @@ func genHRR(w *bytes.Buffer, la, lb, lc, ld, nf int) {
 
 func main() {
 	outPath := flag.String("o", "", "output file (default standard output)")
+	derivPath := flag.String("deriv", "", "write the derivative classes (deriv_gen.go) to this file instead")
 	flag.Parse()
+	if *derivPath != "" {
+		if err := writeDeriv(*derivPath); err != nil {
+			fmt.Fprintln(os.Stderr, "gen:", err)
+			os.Exit(1)
+		}
+		return
+	}
 	var classes [][4]int
 	key := func(la, lb int) int { return (la+lb)*16 + la }
 	for la := 0; la <= genMaxL; la++ {

@@ -1,0 +1,222 @@
+package dft
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+
+	"poise/energy/basis"
+	"poise/energy/grid"
+	"poise/energy/integral"
+	"poise/energy/xc"
+)
+
+// TestBuildIndependentOfThreadsAndCache checks that the energy, electron
+// count, potential matrix and nuclear gradient are bit-for-bit the same
+// with 1 and 2 threads and whatever part of the function values is kept
+// between Builds (none, some batches, all), on the first and on a repeated
+// Build (which reads the stored values).
+func TestBuildIndependentOfThreadsAndCache(t *testing.T) {
+	cases := []struct {
+		method       string
+		charge, mult int
+		unrestricted bool
+	}{
+		{"b3lyp", 0, 1, false},
+		{"lda", 0, 1, false},
+		{"pbe", 1, 2, true},
+	}
+	for _, c := range cases {
+		t.Run(fmt.Sprintf("%s/mult%d", c.method, c.mult), func(t *testing.T) {
+			m := build(t, water, c.charge, c.mult)
+			m.Atoms[1].Position[0] += 0.11
+			fn, err := xc.Lookup(c.method)
+			if err != nil {
+				t.Fatal(err)
+			}
+			set, err := basis.Load("6-31g*")
+			if err != nil {
+				t.Fatal(err)
+			}
+			dens := testDensities(t, m, set, basis.Default, c.unrestricted)
+			sh, err := set.Shells(m, basis.Default)
+			if err != nil {
+				t.Fatal(err)
+			}
+			z := make([]int, len(m.Atoms))
+			pos := make([][3]float64, len(m.Atoms))
+			for i, a := range m.Atoms {
+				z[i], pos[i] = a.Z, a.Position
+			}
+			g, err := grid.New(z, pos, 1, grid.IdentityFrame(), 2)
+			if err != nil {
+				t.Fatal(err)
+			}
+			type outcome struct {
+				e, nel float64
+				v      [][]float64
+				grad   [][3]float64
+			}
+			run := func(threads int, cacheBytes int64) []outcome {
+				b := integral.NewBasis(sh)
+				p := New(fn, g, b, threads)
+				p.CacheBytes = cacheBytes
+				var outs []outcome
+				for rep := 0; rep < 2; rep++ {
+					v := make([][]float64, len(dens))
+					for s := range v {
+						v[s] = make([]float64, b.NBF*b.NBF)
+					}
+					e, nel, err := p.Build(context.Background(), dens, v)
+					if err != nil {
+						t.Fatal(err)
+					}
+					gr, err := p.Gradient(context.Background(), dens, len(m.Atoms))
+					if err != nil {
+						t.Fatal(err)
+					}
+					outs = append(outs, outcome{e, nel, v, gr})
+				}
+				return outs
+			}
+			ref := run(1, -1)
+			for _, o := range []struct {
+				threads int
+				cache   int64
+			}{{1, 0}, {2, -1}, {2, 0}, {2, 200 << 10}, {1, 200 << 10}} {
+				got := run(o.threads, o.cache)
+				for rep := range got {
+					a, b := ref[rep], got[rep]
+					if a.e != b.e || a.nel != b.nel {
+						t.Errorf("threads %d cache %d build %d: E %.17g N %.17g, want %.17g %.17g", o.threads, o.cache, rep, b.e, b.nel, a.e, a.nel)
+					}
+					for s := range a.v {
+						for i := range a.v[s] {
+							if a.v[s][i] != b.v[s][i] {
+								t.Fatalf("threads %d cache %d build %d: V[%d][%d] %.17g, want %.17g", o.threads, o.cache, rep, s, i, b.v[s][i], a.v[s][i])
+							}
+						}
+					}
+					for i := range a.grad {
+						if a.grad[i] != b.grad[i] {
+							t.Errorf("threads %d cache %d: gradient of atom %d %v, want %v", o.threads, o.cache, i, b.grad[i], a.grad[i])
+						}
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestDotProducts compares the product kernel with gonum's matrix product
+// for shapes that exercise the 4×2 tiles and their remainders.
+func TestDotProducts(t *testing.T) {
+	for _, sz := range [][3]int{{1, 1, 1}, {4, 2, 3}, {5, 3, 7}, {7, 9, 1}, {13, 6, 30}, {8, 8, 0}} {
+		na, nb, k := sz[0], sz[1], sz[2]
+		a := make([]float64, na*k)
+		b := make([]float64, nb*k)
+		x := uint64(12345)
+		rnd := func() float64 {
+			x = x*6364136223846793005 + 1442695040888963407
+			return float64(x>>11)/float64(1<<53) - 0.5
+		}
+		for i := range a {
+			a[i] = rnd()
+		}
+		for i := range b {
+			b[i] = rnd()
+		}
+		const ldc = 11
+		c := make([]float64, na*ldc)
+		for i := range c {
+			c[i] = 99
+		}
+		dotProducts(a, na, b, nb, k, c, ldc)
+		var want mat.Dense
+		if k > 0 {
+			want.Mul(mat.NewDense(na, k, a), mat.NewDense(nb, k, b).T())
+		}
+		for i := 0; i < na; i++ {
+			for j := 0; j < ldc; j++ {
+				got := c[i*ldc+j]
+				switch {
+				case j >= nb:
+					if got != 99 {
+						t.Errorf("%v: c[%d][%d] = %g written outside the block", sz, i, j, got)
+					}
+				case k == 0:
+					if got != 0 {
+						t.Errorf("%v: c[%d][%d] = %g, want 0", sz, i, j, got)
+					}
+				default:
+					if w := want.At(i, j); math.Abs(got-w) > 1e-14*(1+math.Abs(w)) {
+						t.Errorf("%v: c[%d][%d] = %.17g, gonum %.17g", sz, i, j, got, w)
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestFactorDensity checks the pivoted Cholesky factor against the
+// definition: for D = C Cᵀ built from r random columns, L has r columns
+// and L Lᵀ reproduces D; an indefinite matrix is refused. The rank of D is
+// compared with gonum's singular values.
+func TestFactorDensity(t *testing.T) {
+	const n = 12
+	x := uint64(7)
+	rnd := func() float64 {
+		x = x*6364136223846793005 + 1442695040888963407
+		return float64(x>>11)/float64(1<<53) - 0.5
+	}
+	for _, r := range []int{0, 1, 5, 12} {
+		d := make([]float64, n*n)
+		for k := 0; k < r; k++ {
+			c := make([]float64, n)
+			for i := range c {
+				c[i] = rnd()
+			}
+			for i := 0; i < n; i++ {
+				for j := 0; j < n; j++ {
+					d[i*n+j] += 2 * c[i] * c[j]
+				}
+			}
+		}
+		var svd mat.SVD
+		if !svd.Factorize(mat.NewDense(n, n, append([]float64(nil), d...)), mat.SVDNone) {
+			t.Fatal("gonum SVD failed")
+		}
+		want := 0
+		for _, v := range svd.Values(nil) {
+			if v > 1e-10 {
+				want++
+			}
+		}
+		f := factorDensity(d, n)
+		if !f.ok || f.rank != want {
+			t.Fatalf("rank-%d matrix: ok %v rank %d, gonum's singular values give %d", r, f.ok, f.rank, want)
+		}
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
+				var s float64
+				for k := 0; k < f.rank; k++ {
+					s += f.l[i*f.rank+k] * f.l[j*f.rank+k]
+				}
+				if math.Abs(s-d[i*n+j]) > 1e-13 {
+					t.Errorf("rank %d: (LLᵀ)[%d][%d] = %.15g, D = %.15g", r, i, j, s, d[i*n+j])
+				}
+			}
+		}
+	}
+	ind := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		ind[i*n+i] = 1
+	}
+	ind[0*n+1], ind[1*n+0] = 2, 2 // eigenvalues 3 and −1 in the first 2×2 block
+	if f := factorDensity(ind, n); f.ok {
+		t.Errorf("indefinite matrix factored with rank %d", f.rank)
+	}
+}
