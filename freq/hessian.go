@@ -112,6 +112,9 @@ type Hessian struct {
 	// reference point.
 	SCFIterations          []int
 	ReferenceSCFIterations int
+	// ReferenceGapHartree is the HOMO–LUMO gap at the reference point (0
+	// when the surface reports none).
+	ReferenceGapHartree float64
 }
 
 // displacement is one displaced point.
@@ -188,13 +191,14 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 		}
 		evals++
 		ref = storedPoint{Coordinate: -1, StepBohr: step, EnergyHartree: pt.EnergyHartree,
-			Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations}
+			Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations, GapHartree: pt.GapHartree}
 		if err := st.save(referenceName, &ref); err != nil {
 			return nil, err
 		}
 	}
 	h.EnergyHartree, h.GradientAU, h.DipoleAU = ref.EnergyHartree, ref.Gradient, ref.DipoleAU
 	h.ReferenceSCFIterations = ref.SCFIterations
+	h.ReferenceGapHartree = ref.GapHartree
 
 	// The displaced points: reload what is saved.
 	// A single atom's Hessian is zero (translations only): nothing to

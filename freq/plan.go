@@ -96,7 +96,7 @@ func ComputeReference(ctx context.Context, s gradient.Surface, x0 []float64, opt
 		return false, fmt.Errorf("freq: reference point: %w", err)
 	}
 	ref := storedPoint{Coordinate: -1, StepBohr: step, EnergyHartree: pt.EnergyHartree,
-		Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations}
+		Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations, GapHartree: pt.GapHartree}
 	return true, st.save(referenceName, &ref)
 }
 

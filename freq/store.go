@@ -70,6 +70,7 @@ type storedPoint struct {
 	Gradient      []float64  `json:"gradient_hartree_per_bohr"`
 	DipoleAU      [3]float64 `json:"dipole_au"`
 	SCFIterations int        `json:"scf_iterations"`
+	GapHartree    float64    `json:"homo_lumo_gap_hartree,omitempty"`
 }
 
 func (p *storedPoint) valid(n int, step float64, coord, steps int) bool {

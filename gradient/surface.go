@@ -48,6 +48,10 @@ type Point struct {
 	// SCFIterations is the number of SCF iterations the energy took (0
 	// for surfaces without an SCF).
 	SCFIterations int
+	// GapHartree is the HOMO–LUMO gap of the SCF (the smaller of the α
+	// and β gaps); 0 for surfaces without orbitals or without a virtual
+	// orbital.
+	GapHartree float64
 }
 
 // Surface is a potential-energy surface: coordinates in, energy and the
@@ -239,6 +243,7 @@ func (s *SCFSurface) Evaluate(ctx context.Context, coordsBohr []float64, req Req
 	if st != nil && st.res != nil {
 		out.EnergyHartree = st.energy
 		out.SCFIterations = st.res.Iterations
+		out.GapHartree = orbitalGap(st.res)
 	}
 	if err != nil {
 		return err
@@ -392,6 +397,30 @@ func xcCacheBytes(memoryBytes int64) int64 {
 		return 0
 	}
 	return max(memoryBytes/4, 1)
+}
+
+// orbitalGap is the smallest HOMO–LUMO gap over the spins of res (0 when
+// there is no occupied–virtual pair).
+func orbitalGap(res *scf.Result) float64 {
+	gap := 0.0
+	for s, e := range res.OrbitalEnergies {
+		nocc := res.NumAlpha
+		if len(res.OrbitalEnergies) == 1 {
+			nocc = (res.NumAlpha + res.NumBeta) / 2
+			if res.NumAlpha != res.NumBeta {
+				return 0
+			}
+		} else if s == 1 {
+			nocc = res.NumBeta
+		}
+		if nocc < 1 || nocc >= len(e) {
+			continue
+		}
+		if g := e[nocc] - e[nocc-1]; gap == 0 || g < gap {
+			gap = g
+		}
+	}
+	return gap
 }
 
 // minDistanceBohr is the smallest interatomic distance a surface accepts

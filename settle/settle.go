@@ -591,7 +591,7 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 	if RotatableBonds(atomicNumbers(final), x) > 0 {
 		sum.Warnings = append(sum.Warnings, RotatableWarning)
 	}
-	if w := StabilityWarning(atomicNumbers(final), x, final.Multiplicity, r.lvl.SCF.Unrestricted); w != "" {
+	if w := StabilityWarning(atomicNumbers(final), x, final.Multiplicity, r.lvl.SCF.Unrestricted, h.ReferenceGapHartree); w != "" {
 		sum.Warnings = append(sum.Warnings, w)
 	}
 	return &Result{Summary: sum, Modes: file, TrajectoryXYZ: r.traj.String()}, nil
@@ -602,11 +602,15 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 // unrestricted solution and was not checked (settle does not run the
 // stability check): one with a stretched bond, a bonded pair (optimize.Bonds)
 // between 1.3 and 1.8 times the sum of the covalent radii (common practice;
-// longer links are taken for van der Waals contacts between fragments).
-// It returns "" when there is nothing to warn about.
-func StabilityWarning(z []int, xBohr []float64, multiplicity int, unrestricted bool) string {
+// longer links are taken for van der Waals contacts between fragments),
+// or one whose HOMO–LUMO gap gapHartree (0: unknown) is below
+// SmallGapHartree. It returns "" when there is nothing to warn about.
+func StabilityWarning(z []int, xBohr []float64, multiplicity int, unrestricted bool, gapHartree float64) string {
 	if multiplicity != 1 || unrestricted {
 		return ""
+	}
+	if gapHartree > 0 && gapHartree < SmallGapHartree {
+		return fmt.Sprintf("the closed-shell singlet has a small HOMO–LUMO gap (%.3f Eh = %.2f eV) and its wavefunction was not checked for a restricted → unrestricted instability: check it with 'poise energy --stability check' at the final geometry", gapHartree, gapHartree*units.HartreeEV)
 	}
 	for _, b := range optimize.Bonds(z, xBohr) {
 		i, j := b[0], b[1]
@@ -622,6 +626,12 @@ func StabilityWarning(z []int, xBohr []float64, multiplicity int, unrestricted b
 	}
 	return ""
 }
+
+// SmallGapHartree is the HOMO–LUMO gap below which a restricted singlet is
+// suspected of a restricted → unrestricted instability (0.1 Eh ≈ 2.7 eV;
+// common practice: stretched bonds, diradicaloids and large acenes have gaps
+// of this order).
+const SmallGapHartree = 0.1
 
 // RotatableWarning is the warning for molecules with rotatable bonds.
 const RotatableWarning = "the molecule has rotatable bonds: the minimum found is the one nearest the input, not necessarily the lowest conformer"
