@@ -167,9 +167,10 @@ func runModesTask(ctx context.Context, p *planFile, t planTask, threads int) (bo
 	if err := mc.surf.SetWarmStart(&state); err != nil {
 		return false, err
 	}
-	opt := mc.hopts
-	opt.Threads = threads
-	return freq.ComputeDisplacement(ctx, mc.surf, mc.x0, opt, freq.Displacement{Coordinate: t.Coordinate, Steps: t.Steps})
+	hopts := mc.hopts
+	hopts.Threads = threads
+	d := freq.Displacement{Coordinate: t.Coordinate, Steps: t.Steps}
+	return freq.ComputeDisplacement(ctx, mc.surf, mc.x0, hopts, d)
 }
 
 // noEvaluation is a surface for assembling: every point must be saved.

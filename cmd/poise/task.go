@@ -22,6 +22,7 @@ import (
 
 	"poise/energy/scf"
 	"poise/internal/atomicfile"
+	"poise/optimize"
 )
 
 // A plan is a directory of independent tasks that a batch system (a Slurm
@@ -231,8 +232,8 @@ func (p *planFile) readTask(i int) (planTask, error) {
 	return t, nil
 }
 
-// prepareInput copies the input file into the plan directory (for modes
-// plans) and returns its hash.
+// fileSHA256 is the hex SHA-256 of a file's contents (recorded in a plan,
+// so that planning again from an edited input is told apart).
 func fileSHA256(path string) (string, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
@@ -581,8 +582,11 @@ func taskExit(err error) error {
 	if errors.As(err, &ee) {
 		return err
 	}
-	if errors.Is(err, scf.ErrNotConverged) {
+	switch {
+	case errors.Is(err, scf.ErrNotConverged):
 		return convergeErr(fmt.Errorf("%w\n  try: a plan with --max-iterations raised; check the geometry, charge and multiplicity", err))
+	case errors.Is(err, optimize.ErrNotConverged):
+		return convergeErr(fmt.Errorf("%w\n  try: 'poise settle' on the structure with --max-steps raised, then plan with the relaxed structure", err))
 	}
 	return err
 }
@@ -669,7 +673,7 @@ func runAll(cmd *cobra.Command, p *planFile, jobs, threads int, asJSON bool) err
 				switch {
 				case err != nil && ctx.Err() == nil:
 					sum.Failed[i] = err.Error()
-					convFail = convFail || errors.Is(err, scf.ErrNotConverged)
+					convFail = convFail || errors.Is(err, scf.ErrNotConverged) || errors.Is(err, optimize.ErrNotConverged)
 				case err == nil && computed:
 					sum.Computed = append(sum.Computed, i)
 				case err == nil:

@@ -90,11 +90,11 @@ var workloads = []workload{
 		run: func(ctx context.Context, e env) (measurement, error) {
 			return energyWorkload(ctx, e, "benzene.xyz", "b3lyp")
 		}},
-	{name: "gradient-ratio", what: "benzene B3LYP/6-31G*: (energy + gradient) ÷ energy", goal: goal{2, true, ""}, cheap: true,
+	{name: "gradient-ratio", what: "benzene B3LYP/6-31G*: gradient step ÷ SCF energy", goal: goal{2, true, ""}, cheap: true,
 		run: func(ctx context.Context, e env) (measurement, error) {
 			return gradientRatio(ctx, e, "benzene.xyz", "b3lyp")
 		}},
-	{name: "gradient-ratio-hf", what: "benzene HF/6-31G*: (energy + gradient) ÷ energy", goal: goal{1.5, true, ""}, cheap: true,
+	{name: "gradient-ratio-hf", what: "benzene HF/6-31G*: gradient step ÷ SCF energy", goal: goal{1.5, true, ""}, cheap: true,
 		run: func(ctx context.Context, e env) (measurement, error) {
 			return gradientRatio(ctx, e, "benzene.xyz", "hf")
 		}},
@@ -268,7 +268,8 @@ func energyWorkload(ctx context.Context, e env, file, method string) (measuremen
 
 // gradientRatio times an energy and, on a fresh surface, an energy with
 // its analytic gradient (both from the atomic guess) and returns the
-// ratio of the second to the first.
+// gradient step ÷ SCF energy ratio of the gradients issue: the time the
+// gradient adds to the converged SCF, (t(E+G) − t(E)) / t(E).
 func gradientRatio(ctx context.Context, e env, file, method string) (measurement, error) {
 	mol, err := readMolecule(e, file)
 	if err != nil {
@@ -298,7 +299,7 @@ func gradientRatio(ctx context.Context, e env, file, method string) (measurement
 	if err != nil {
 		return measurement{}, err
 	}
-	return measurement{WallSeconds: tE + tG, Evaluations: 2, SCFIterations: int(iters.Load()), Value: tG / tE,
+	return measurement{WallSeconds: tE + tG, Evaluations: 2, SCFIterations: int(iters.Load()), Value: (tG - tE) / tE,
 		Detail: fmt.Sprintf("energy %.2f s, energy+gradient %.2f s", tE, tG)}, nil
 }
 
