@@ -2,7 +2,6 @@ package freq
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 	"sync"
@@ -117,9 +116,32 @@ type Hessian struct {
 	ReferenceGapHartree float64
 }
 
-// displacement is one displaced point.
-type displacement struct {
-	coord, steps int
+// computePoint evaluates the point d of s (Coordinate −1: the reference) (gradient, and the dipole with
+// dipole) and saves it in st. A displaced point starts from the surface's
+// warm start and keeps it; the reference replaces it. x is scratch for the
+// displaced geometry (nil: allocated).
+func computePoint(ctx context.Context, s gradient.Surface, x0 []float64, step float64, d Displacement, dipole bool, threads int, x []float64, st *store) (storedPoint, error) {
+	req := gradient.Request{Gradient: true, Dipole: dipole, Threads: threads}
+	name := referenceName
+	what := "reference point"
+	if d.Coordinate >= 0 {
+		if x == nil {
+			x = make([]float64, len(x0))
+		}
+		copy(x, x0)
+		x[d.Coordinate] += float64(d.Steps) * step
+		x0 = x
+		req.KeepWarmStart = true
+		name = displacementName(d.Coordinate, d.Steps)
+		what = fmt.Sprintf("displaced point (atom %d %c %+g bohr)", d.Coordinate/3+1, "xyz"[d.Coordinate%3], float64(d.Steps)*step)
+	}
+	var pt gradient.Point
+	if err := s.Evaluate(ctx, x0, req, &pt); err != nil {
+		return storedPoint{}, fmt.Errorf("freq: %s: %w", what, err)
+	}
+	p := storedPoint{Coordinate: d.Coordinate, Steps: d.Steps, StepBohr: step, EnergyHartree: pt.EnergyHartree,
+		Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations, GapHartree: pt.GapHartree}
+	return p, st.save(name, &p)
 }
 
 func (o *HessianOptions) stepList() []int {
@@ -147,32 +169,11 @@ func (o *HessianOptions) stepList() []int {
 func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt HessianOptions) (*Hessian, error) {
 	nat := s.NumAtoms()
 	n := 3 * nat
-	if nat < 1 {
-		return nil, errors.New("freq: no atoms")
-	}
-	if len(x0) != n {
-		return nil, fmt.Errorf("freq: %d coordinates for %d atoms", len(x0), nat)
-	}
-	for i, v := range x0 {
-		if !finite(v) {
-			return nil, fmt.Errorf("freq: coordinate %d is %v", i+1, v)
-		}
-	}
-	step := opt.StepBohr
-	if step == 0 {
-		step = DefaultStepBohr
-	}
-	if !(step > 0) || step > maxStepBohr {
-		return nil, fmt.Errorf("freq: finite-difference step %g bohr outside (0, %g]", step, maxStepBohr)
-	}
 	if opt.MassesU != nil && len(opt.MassesU) != nat {
 		return nil, fmt.Errorf("freq: %d masses for %d atoms", len(opt.MassesU), nat)
 	}
 	threads := max(opt.Threads, 1)
-
-	man := &storeManifest{Format: storeFormat, Version: storeVersion, Tag: opt.Tag, NumAtoms: nat,
-		CoordsBohr: append([]float64(nil), x0...), StepBohr: step, FourPoint: opt.FourPoint, Dipole: opt.Dipole}
-	st, _, err := openStore(opt.WorkDir, man, opt.DiscardStale)
+	st, step, err := setup(nat, x0, &opt)
 	if err != nil {
 		return nil, err
 	}
@@ -185,36 +186,23 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 	// The reference point.
 	ref, haveRef := st.load(referenceName, n, step, -1, 0)
 	if !haveRef {
-		var pt gradient.Point
-		if err := s.Evaluate(ctx, x0, gradient.Request{Gradient: true, Dipole: opt.Dipole, Threads: threads}, &pt); err != nil {
-			return nil, fmt.Errorf("freq: reference point: %w", err)
-		}
-		evals++
-		ref = storedPoint{Coordinate: -1, StepBohr: step, EnergyHartree: pt.EnergyHartree,
-			Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations, GapHartree: pt.GapHartree}
-		if err := st.save(referenceName, &ref); err != nil {
+		if ref, err = computePoint(ctx, s, x0, step, Displacement{Coordinate: -1}, opt.Dipole, threads, nil, st); err != nil {
 			return nil, err
 		}
+		evals++
 	}
 	h.EnergyHartree, h.GradientAU, h.DipoleAU = ref.EnergyHartree, ref.Gradient, ref.DipoleAU
 	h.ReferenceSCFIterations = ref.SCFIterations
 	h.ReferenceGapHartree = ref.GapHartree
 
 	// The displaced points: reload what is saved.
-	// A single atom's Hessian is zero (translations only): nothing to
-	// displace.
 	steps := opt.stepList()
-	var jobs []displacement
-	for i := 0; i < n && nat > 1; i++ {
-		for _, k := range steps {
-			jobs = append(jobs, displacement{i, k})
-		}
-	}
+	jobs := Displacements(nat, opt.FourPoint)
 	h.Displacements = len(jobs)
 	results := make([]storedPoint, len(jobs))
 	var todo []int
 	for j, d := range jobs {
-		if p, ok := st.load(displacementName(d.coord, d.steps), n, step, d.coord, d.steps); ok {
+		if p, ok := st.load(displacementName(d.Coordinate, d.Steps), n, step, d.Coordinate, d.Steps); ok {
 			results[j] = p
 			h.Reused++
 			continue
@@ -292,7 +280,7 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 // goroutines and saves each as it finishes. It returns the number
 // evaluated.
 func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, step float64, opt HessianOptions,
-	threads int, jobs []displacement, todo []int, results []storedPoint, st *store, reused int) (int, error) {
+	threads int, jobs []Displacement, todo []int, results []storedPoint, st *store, reused int) (int, error) {
 	if len(todo) == 0 {
 		return 0, nil
 	}
@@ -328,7 +316,6 @@ func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, ste
 		go func() {
 			defer wg.Done()
 			x := make([]float64, len(x0))
-			var pt gradient.Point
 			for cctx.Err() == nil {
 				mu.Lock()
 				t := next
@@ -338,21 +325,11 @@ func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, ste
 					return
 				}
 				j := todo[t]
-				d := jobs[j]
-				copy(x, x0)
-				x[d.coord] += float64(d.steps) * step
-				pt.Gradient = nil
-				err := s.Evaluate(cctx, x, gradient.Request{Gradient: true, Dipole: opt.Dipole, Threads: share, KeepWarmStart: true}, &pt)
+				p, err := computePoint(cctx, s, x0, step, jobs[j], opt.Dipole, share, x, st)
 				if err != nil {
 					if cctx.Err() == nil {
-						fail(fmt.Errorf("freq: displaced point (atom %d %c %+g bohr): %w", d.coord/3+1, "xyz"[d.coord%3], float64(d.steps)*step, err))
+						fail(err)
 					}
-					return
-				}
-				p := storedPoint{Coordinate: d.coord, Steps: d.steps, StepBohr: step, EnergyHartree: pt.EnergyHartree,
-					Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations}
-				if err := st.save(displacementName(d.coord, d.steps), &p); err != nil {
-					fail(err)
 					return
 				}
 				mu.Lock()

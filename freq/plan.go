@@ -26,8 +26,12 @@ type Displacement struct {
 }
 
 // Displacements lists the displaced points of a Hessian of nat atoms in the
-// order ComputeHessian uses (coordinate-major; steps +1, −1[, +2, −2]).
+// order ComputeHessian uses (coordinate-major; steps +1, −1[, +2, −2]). A
+// single atom has none: its Hessian is zero (translations only).
 func Displacements(nat int, fourPoint bool) []Displacement {
+	if nat < 2 {
+		return nil
+	}
 	o := HessianOptions{FourPoint: fourPoint}
 	steps := o.stepList()
 	out := make([]Displacement, 0, 3*nat*len(steps))
@@ -47,12 +51,10 @@ func (d Displacement) String() string {
 	return fmt.Sprintf("atom %d %c %+d step(s)", d.Coordinate/3+1, "xyz"[d.Coordinate%3], d.Steps)
 }
 
-// pieceSetup checks the options and geometry of a piecewise calculation
-// and opens its work directory (which must be given).
-func pieceSetup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, error) {
-	if opt.WorkDir == "" {
-		return nil, 0, errors.New("freq: a piecewise Hessian needs a work directory")
-	}
+// setup checks the geometry and step of a Hessian and opens its work
+// directory (a store that keeps nothing when opt.WorkDir is empty). It
+// returns the step in use.
+func setup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, error) {
 	if nat < 1 {
 		return nil, 0, errors.New("freq: no atoms")
 	}
@@ -77,6 +79,15 @@ func pieceSetup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, er
 	return st, step, err
 }
 
+// pieceSetup is setup for a piecewise Hessian, which needs a work
+// directory.
+func pieceSetup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, error) {
+	if opt.WorkDir == "" {
+		return nil, 0, errors.New("freq: a piecewise Hessian needs a work directory")
+	}
+	return setup(nat, x0, opt)
+}
+
 // ComputeReference evaluates the undisplaced point of s at x0 (energy,
 // gradient and, with opt.Dipole, the dipole), as ComputeHessian does first,
 // and saves it in opt.WorkDir; a point already saved is not recomputed
@@ -91,13 +102,8 @@ func ComputeReference(ctx context.Context, s gradient.Surface, x0 []float64, opt
 	if _, ok := st.load(referenceName, 3*nat, step, -1, 0); ok {
 		return false, nil
 	}
-	var pt gradient.Point
-	if err := s.Evaluate(ctx, x0, gradient.Request{Gradient: true, Dipole: opt.Dipole, Threads: max(opt.Threads, 1)}, &pt); err != nil {
-		return false, fmt.Errorf("freq: reference point: %w", err)
-	}
-	ref := storedPoint{Coordinate: -1, StepBohr: step, EnergyHartree: pt.EnergyHartree,
-		Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations, GapHartree: pt.GapHartree}
-	return true, st.save(referenceName, &ref)
+	_, err = computePoint(ctx, s, x0, step, Displacement{Coordinate: -1}, opt.Dipole, max(opt.Threads, 1), nil, st)
+	return err == nil, err
 }
 
 // ComputeDisplacement evaluates one displaced point of s (from the
@@ -123,16 +129,8 @@ func ComputeDisplacement(ctx context.Context, s gradient.Surface, x0 []float64, 
 			os.Remove(f)
 		}
 	}
-	x := append([]float64(nil), x0...)
-	x[d.Coordinate] += float64(d.Steps) * step
-	var pt gradient.Point
-	req := gradient.Request{Gradient: true, Dipole: opt.Dipole, Threads: max(opt.Threads, 1), KeepWarmStart: true}
-	if err := s.Evaluate(ctx, x, req, &pt); err != nil {
-		return false, fmt.Errorf("freq: displaced point (atom %d %c %+g bohr): %w", d.Coordinate/3+1, "xyz"[d.Coordinate%3], float64(d.Steps)*step, err)
-	}
-	p := storedPoint{Coordinate: d.Coordinate, Steps: d.Steps, StepBohr: step, EnergyHartree: pt.EnergyHartree,
-		Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations}
-	return true, st.save(name, &p)
+	_, err = computePoint(ctx, s, x0, step, d, opt.Dipole, max(opt.Threads, 1), nil, st)
+	return err == nil, err
 }
 
 // SavedPoints reports which points of the Hessian described by opt (at x0,

@@ -349,7 +349,7 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 			return nil, err
 		}
 		pot = dft.New(fn, g, integral.NewBasis(shells), threads)
-		pot.CacheBytes = xcCacheBytes(opts.MemoryBytes)
+		pot.CacheBytes = dft.CacheBytesFor(opts.MemoryBytes)
 		opts.XC = pot
 	}
 	res, err := scf.Run(ctx, m, shells, opts)
@@ -387,16 +387,6 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		}
 	}
 	return c, nil
-}
-
-// xcCacheBytes is the share of a memory budget that the stored basis-function
-// values of the DFT grid may take: a quarter (in-core integrals take at most
-// half); 0 (no budget given) leaves the package default.
-func xcCacheBytes(memoryBytes int64) int64 {
-	if memoryBytes <= 0 {
-		return 0
-	}
-	return max(memoryBytes/4, 1)
 }
 
 // orbitalGap is the smallest HOMO–LUMO gap over the spins of res (0 when

@@ -250,9 +250,7 @@ func (s *setup) attachXC(frame *grid.Frame) error {
 	}
 	s.grid = g
 	pot := dft.New(s.fn, g, integral.NewBasis(s.shells), s.opts.Threads)
-	// A quarter of --memory for the stored basis-function values (the
-	// in-core integrals take at most half).
-	pot.CacheBytes = max(s.memBytes/4, 1)
+	pot.CacheBytes = dft.CacheBytesFor(s.memBytes)
 	s.opts.XC = pot
 	return nil
 }

@@ -201,6 +201,17 @@ func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) 
 	return exc, nel, nil
 }
 
+// CacheBytesFor is the share of a run's memory budget that the stored
+// basis-function values may take: a quarter (in-core electron-repulsion
+// integrals take at most half). A budget of 0 (none given) gives 0, which
+// leaves DefaultCacheBytes.
+func CacheBytesFor(memoryBytes int64) int64 {
+	if memoryBytes <= 0 {
+		return 0
+	}
+	return max(memoryBytes/4, 1)
+}
+
 // DefaultCacheBytes is the memory budget for stored basis-function values
 // used when Potential.CacheBytes is zero.
 const DefaultCacheBytes = 512 << 20

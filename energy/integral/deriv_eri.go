@@ -56,27 +56,6 @@ import (
 
 //go:generate go run ./internal/gen -deriv deriv_gen.go
 
-// derivBoysTab holds the Taylor coefficients of the Boys function of
-// order derivBoysTopM = eriBoysMaxM+1 on the grid of eriBoysTab (same
-// layout, one order): the generated code for four d shells needs it. Its
-// lower orders follow by downward recursion. Read-only after
-// initialization.
-var derivBoysTab = func() *[eriBoysRows][eriBoysTerms]float64 {
-	tab := new([eriBoysRows][eriBoysTerms]float64)
-	var f [eriBoysMaxM + 1 + eriBoysTerms]float64
-	for k := range tab {
-		Boys(eriBoysMaxM+eriBoysTerms, float64(k)*eriBoysStep, f[:])
-		fact := 1.0
-		for j := 0; j < eriBoysTerms; j++ {
-			if j > 0 {
-				fact *= -float64(j)
-			}
-			tab[k][j] = f[eriBoysMaxM+1+j] / fact
-		}
-	}
-	return tab
-}()
-
 // derivScreenThreshold drops a unique shell quartet when the estimate
 // Q_ij·Q_kl·max|Γ| of its contribution is below it, Q being the Schwarz
 // factors of the energy engine and max|Γ| the bound

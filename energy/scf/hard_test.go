@@ -227,3 +227,26 @@ func TestH2RestrictedInstability(t *testing.T) {
 		t.Errorf("RHF H2 at 0.74 Å reported unstable: %+v", eq.Stability)
 	}
 }
+
+// TestOneElectronStability: a single electron (the H atom, UHF/6-31G) has
+// no β orbitals to rotate; the stability check and its follow mode must
+// still work (all eigenvalues of its α block are positive, so it is
+// stable) and keep the energy −0.498233 Eh (6-31G hydrogen atom; from
+// memory).
+func TestOneElectronStability(t *testing.T) {
+	for _, mode := range []scf.StabilityMode{scf.StabilityCheck, scf.StabilityFollow} {
+		c := hardCase{"H", "hf", "6-31g", 0, 2, false, []hardAtom{{"H", 0, 0, 0}}}
+		m, sh, opt := setupHard(t, c)
+		opt.Stability = mode
+		res, err := scf.Run(context.Background(), m, sh, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.Stability == nil || !res.Stability.Stable {
+			t.Errorf("mode %v: H atom stability %+v, want stable", mode, res.Stability)
+		}
+		if math.Abs(res.EnergyHartree-(-0.498233)) > 1e-5 {
+			t.Errorf("mode %v: E(H) = %.6f Eh, want −0.498233", mode, res.EnergyHartree)
+		}
+	}
+}

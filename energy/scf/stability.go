@@ -211,9 +211,9 @@ func (h *hessian) unpack(x []float64) [][]float64 {
 func (h *hessian) trialDensity(s int, x []float64) []float64 {
 	n := h.p.n
 	no, nv := h.no[s], h.nv[s]
-	t := mul(h.co[s], n, no, x, nv) // n×nv
 	d := make([]float64, n*n)
 	if nv > 0 && no > 0 {
+		t := mul(h.co[s], n, no, x, nv) // n×nv
 		cvT := make([]float64, nv*n)
 		for mu := 0; mu < n; mu++ {
 			for a := 0; a < nv; a++ {
@@ -235,6 +235,9 @@ func (h *hessian) trialDensity(s int, x []float64) []float64 {
 func (h *hessian) project(s int, f []float64) []float64 {
 	n := h.p.n
 	no, nv := h.no[s], h.nv[s]
+	if no == 0 || nv == 0 { // no rotation of this spin (e.g. a one-electron β)
+		return make([]float64, no*nv)
+	}
 	return mulTN(h.co[s], n, no, mul(f, n, n, h.cv[s], nv), nv)
 }
 
@@ -297,7 +300,7 @@ func (h *hessian) apply(ctx context.Context, block [][]float64) ([][]float64, er
 		var K [][]float64
 		if p.ax != 0 {
 			var err error
-			if _, K, err = p.jk.build(ctx, deltas, true); err != nil {
+			if _, K, err = p.jk.buildFrom(ctx, deltas, true); err != nil {
 				return nil, err
 			}
 		}
@@ -334,7 +337,7 @@ func (h *hessian) apply(ctx context.Context, block [][]float64) ([][]float64, er
 		xs := h.unpack(x)
 		da := h.trialDensity(0, xs[0])
 		db := h.trialDensity(1, xs[1])
-		J, K, err := p.jk.build(ctx, [][]float64{da, db}, p.ax != 0)
+		J, K, err := p.jk.buildFrom(ctx, [][]float64{da, db}, p.ax != 0)
 		if err != nil {
 			return nil, err
 		}

@@ -203,7 +203,7 @@ func genDerivClass(w *bytes.Buffer, la, lb, lc, ld int) {
 	fmt.Fprintf(w, "pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]\n")
 	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)\n")
 	fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
-	genDerivBoys(w, L)
+	genBoys(w, L)
 	if needRz {
 		fmt.Fprintf(w, "rz := q.zeta * ozn\n")
 	}
@@ -416,48 +416,6 @@ func genDerivHRR(w *bytes.Buffer, la, lb, lc, ld int, src func(e, f vec) string,
 				con.emit(w, [4]vec{va, vb, it.a, it.b}, v)
 			}
 		}
-	}
-	fmt.Fprintf(w, "}\n")
-}
-
-// derivBoysTopM is the Boys order above the energy table (eriBoysMaxM =
-// 8) that four d shells need; its Taylor coefficients are derivBoysTab.
-const derivBoysTopM = 9
-
-// genDerivBoys emits f0 … fL = pref·F_m(t) like genBoys, taking the top
-// order from derivBoysTab when L exceeds the energy table.
-func genDerivBoys(w *bytes.Buffer, L int) {
-	if L < derivBoysTopM {
-		genBoys(w, L)
-		return
-	}
-	if L > derivBoysTopM {
-		panic("gen: Boys order too high")
-	}
-	fs := make([]string, L+1)
-	for m := range fs {
-		fs[m] = fmt.Sprintf("f%d", m)
-	}
-	fmt.Fprintf(w, "var %s float64\n", strings.Join(fs, ", "))
-	fmt.Fprintf(w, "if t < eriBoysTMax {\n")
-	fmt.Fprintf(w, "k := int(t*eriBoysInvStep + 0.5)\n")
-	fmt.Fprintf(w, "d := t - float64(k)*eriBoysStep\n")
-	fmt.Fprintf(w, "d2 := d * d\nd4 := d2 * d2\n")
-	fmt.Fprintf(w, "c := &derivBoysTab[k]\n")
-	fmt.Fprintf(w, "f%d = (c[0] + d*c[1]) + d2*(c[2] + d*c[3]) + d4*((c[4] + d*c[5]) + d2*(c[6] + d*c[7]))\n", L)
-	fmt.Fprintf(w, "ex := math.Exp(-t)\n")
-	fmt.Fprintf(w, "t2 := 2 * t\n")
-	for m := L - 1; m >= 0; m-- {
-		fmt.Fprintf(w, "f%d = (t2*f%d + ex) * %v\n", m, m+1, fmtFloat(1/float64(2*m+1)))
-	}
-	for m := 0; m <= L; m++ {
-		fmt.Fprintf(w, "f%d *= pref\n", m)
-	}
-	fmt.Fprintf(w, "} else {\n")
-	fmt.Fprintf(w, "f0 = pref * 0.5 * math.Sqrt(math.Pi/t)\n")
-	fmt.Fprintf(w, "h := 0.5 / t\n")
-	for m := 0; m < L; m++ {
-		fmt.Fprintf(w, "f%d = %s\n", m+1, mulInt(2*m+1, fmt.Sprintf("h*f%d", m)))
 	}
 	fmt.Fprintf(w, "}\n")
 }
