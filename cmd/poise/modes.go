@@ -29,6 +29,7 @@ import (
 	"poise/energy/units"
 	"poise/freq"
 	"poise/gradient"
+	"poise/internal/atomicfile"
 	"poise/settle"
 )
 
@@ -253,6 +254,7 @@ func runModes(cmd *cobra.Command, args []string, lf *levelFlags, f *modesFlags) 
 		if err := os.MkdirAll(outDir, 0o755); err != nil {
 			return fmt.Errorf("--out: %w", err)
 		}
+		atomicfile.RemoveLeftovers(outDir, stem) // of an earlier run killed while writing
 		jsonPath := filepath.Join(outDir, stem+".modes.json")
 		if err := file.Write(jsonPath); err != nil {
 			return fmt.Errorf("writing %s: %w", jsonPath, err)

@@ -229,6 +229,9 @@ func runSettle(cmd *cobra.Command, path string, lf *levelFlags, f *settleFlags) 
 		fmt.Fprintf(stderr, "poise: warning: %v\n", err)
 	}
 	sum := res.Summary
+	// Temporary files of an earlier run killed while writing its output.
+	atomicfile.RemoveLeftovers(outDir, stem)
+	atomicfile.RemoveLeftovers(outDir, "summary.")
 	if err := writeSettleFiles(files, s.mol, res); err != nil {
 		return err
 	}

@@ -39,3 +39,27 @@ func Write(path string, data []byte) error {
 	}
 	return nil
 }
+
+// RemoveLeftovers removes the temporary files that writes of files named
+// prefix… in dir left when the writing process was killed (kill -9 leaves
+// no chance to clean up). Call it before writing those files again; it
+// must not run while another process writes them.
+func RemoveLeftovers(dir, prefix string) {
+	old, _ := filepath.Glob(filepath.Join(dir, ".tmp-"+globEscape(prefix)+"*"))
+	for _, f := range old {
+		os.Remove(f)
+	}
+}
+
+// globEscape quotes the pattern characters of s for filepath.Glob.
+func globEscape(s string) string {
+	var b []byte
+	for i := 0; i < len(s); i++ {
+		switch s[i] {
+		case '*', '?', '[', '\\':
+			b = append(b, '\\')
+		}
+		b = append(b, s[i])
+	}
+	return string(b)
+}
