@@ -28,6 +28,34 @@
 // finished point is saved as a small JSON file (temporary file and
 // rename), and an interrupted run resumes with what is saved.
 //
+// # Symmetry
+//
+// With HessianOptions.SymmetryKinds the Hessian evaluates only the
+// displaced points that are not images of others under the molecule's
+// point group. The operations are found directly, without naming the
+// group: two reference atoms off the centroid and not collinear with it,
+// mapped onto every pair of atoms of the same kinds at the same distances,
+// fix a candidate orthogonal matrix (proper or improper), which is kept if
+// it maps every atom onto an atom of its kind within the tolerance
+// (DefaultSymmetryToleranceBohr); the set must close under products. The
+// geometry is then averaged over the group, x̄_i = (1/|G|) Σ_g R_gᵀ
+// x_{π_g(i)}, and the matrices rebuilt, until it is symmetric to rounding.
+// For every set of equivalent atoms one representative a is displaced;
+// for b = π_g(a) the invariance E(gX) = E(X) gives
+//
+//	H_{π(i) b} = R H_{i a} Rᵀ,    ∂μ/∂x_b = R (∂μ/∂x_a) Rᵀ
+//
+// (3×3 blocks), so the columns of b are rotated central differences of a
+// and carry the same kind of error. A displacement of a may itself be
+// the image of another one of a under an operation that leaves a in place
+// (−x from +x when a lies on the mirror plane x = 0, g_π(i)(−h e_x) =
+// R g_i(+h e_x)); that mixes two points in one difference, so it is used
+// only when the surface is exactly invariant under the operation
+// (AxisOperationsExact: no DFT grid, or a grid oriented along the
+// coordinate axes, whose Lebedev–Laikov rules are invariant under the
+// octahedral group). Linear molecules use no symmetry. Benzene (D6h)
+// needs 8 displaced points instead of 72, water (C2v) 9 instead of 18.
+//
 // # Harmonic analysis
 //
 // Analyze follows E. B. Wilson, J. C. Decius, P. C. Cross, Molecular

@@ -78,6 +78,12 @@ type FileComputation struct {
 	Threads                int     `json:"threads,omitempty"`
 	Concurrent             int     `json:"concurrent_points,omitempty"`
 	WallSeconds            float64 `json:"wall_seconds,omitempty"`
+	// SymmetryOperations is the order of the point group used to skip
+	// displaced points that are images of others (absent: none used);
+	// SymmetryShiftBohr is how far the input geometry moved to be made
+	// exactly symmetric.
+	SymmetryOperations int     `json:"symmetry_operations,omitempty"`
+	SymmetryShiftBohr  float64 `json:"symmetrized_by_bohr,omitempty"`
 }
 
 // File is the JSON document of a harmonic analysis: everything needed to

@@ -74,6 +74,30 @@ type HessianOptions struct {
 	// Progress, if set, is called (from one goroutine at a time) after
 	// every finished or reloaded point.
 	Progress func(Progress)
+	// SymmetryKinds, one per atom, lets the Hessian use the point group
+	// of the reference geometry: atoms of equal kind (the same element;
+	// the CLI passes atomic numbers) may be interchanged by its
+	// operations. One atom of each set of equivalent atoms is displaced,
+	// and its columns of the Hessian and of the dipole derivatives give
+	// those of the others by rotation; the reference geometry is first
+	// made exactly symmetric (no atom moves by more than
+	// SymmetryToleranceBohr, or symmetry is not used). For a charged
+	// molecule with MassesU, atoms also need equal masses. nil evaluates
+	// every displaced point.
+	SymmetryKinds []int
+	// SymmetryToleranceBohr is the largest distance by which an atom may
+	// miss its image; 0 means DefaultSymmetryToleranceBohr.
+	SymmetryToleranceBohr float64
+	// AxisOperationsExact declares the surface exactly invariant (not
+	// only to within its numerical noise) under the symmetry operations
+	// that permute the coordinate axes with signs: true for surfaces
+	// without an integration grid, or whose grids are oriented along the
+	// coordinate axes. It lets a displaced point be the mirror image of
+	// another displacement of the same atom (the −x displacement of an
+	// atom on the mirror plane x = 0 is the image of its +x one). Without
+	// it only whole columns are derived, which are central differences
+	// of their own and so cancel any noise of the reference point.
+	AxisOperationsExact bool
 }
 
 // Progress reports the state of a Hessian calculation.
@@ -99,14 +123,22 @@ type Hessian struct {
 	DipoleDerivAU []float64
 	StepBohr      float64
 	FourPoint     bool
-	// Displacements is the number of displaced points; Computed of them
+	// SymmetryOperations is the order of the point group used (1: none);
+	// SymmetryShiftBohr is the largest distance an atom of the input
+	// geometry moved to make it exactly symmetric (CoordsBohr is the
+	// symmetrized geometry).
+	SymmetryOperations int
+	SymmetryShiftBohr  float64
+	// Displacements is the number of displaced points evaluated (fewer
+	// than 6N with symmetry); Computed of them
 	// were evaluated by this call and Reused were read from the work
 	// directory. Evaluations counts every surface evaluation of this call
 	// (the reference, and when resuming a re-evaluation of its energy to
 	// restore the warm start).
 	Displacements, Computed, Reused, Evaluations int
-	// SCFIterations are those of each displaced point, in the order of
-	// the displacements (coordinate-major, steps +1, −1[, +2, −2]); 0 for
+	// SCFIterations are those of each displaced point evaluated, in the
+	// order of the displacements (coordinate-major, steps +1, −1[, +2,
+	// −2]); 0 for
 	// surfaces without an SCF. ReferenceSCFIterations is that of the
 	// reference point.
 	SCFIterations          []int
@@ -173,14 +205,17 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 		return nil, fmt.Errorf("freq: %d masses for %d atoms", len(opt.MassesU), nat)
 	}
 	threads := max(opt.Threads, 1)
-	st, step, err := setup(nat, x0, &opt)
+	st, l, err := setup(nat, x0, &opt)
 	if err != nil {
 		return nil, err
 	}
+	step := l.step
+	x0 = l.x
 	// Temporary files of a run killed while writing a point.
 	st.removeTemporaries()
 
-	h := &Hessian{CoordsBohr: append([]float64(nil), x0...), StepBohr: step, FourPoint: opt.FourPoint}
+	h := &Hessian{CoordsBohr: append([]float64(nil), x0...), StepBohr: step, FourPoint: opt.FourPoint,
+		SymmetryOperations: len(l.sym.ops), SymmetryShiftBohr: l.sym.shiftBohr}
 	evals := 0
 
 	// The reference point.
@@ -196,8 +231,7 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 	h.ReferenceGapHartree = ref.GapHartree
 
 	// The displaced points: reload what is saved.
-	steps := opt.stepList()
-	jobs := Displacements(nat, opt.FourPoint)
+	jobs := l.jobs
 	h.Displacements = len(jobs)
 	results := make([]storedPoint, len(jobs))
 	var todo []int
@@ -227,29 +261,95 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 	if err != nil {
 		return nil, err
 	}
-
-	// Assemble.
 	h.SCFIterations = make([]int, len(jobs))
 	for j := range jobs {
 		h.SCFIterations[j] = results[j].SCFIterations
 	}
-	col := func(coord int, get func(p *storedPoint) []float64, dst []float64) {
-		j := coord * len(steps)
-		p1, m1 := get(&results[j]), get(&results[j+1])
-		if !opt.FourPoint {
-			for k := range dst {
-				dst[k] = (p1[k] - m1[k]) / (2 * step)
-			}
-			return
+	l.assemble(h, results, opt)
+	return h, nil
+}
+
+// assemble fills the Hessian and the dipole derivatives of h from the
+// evaluated points: finite differences for the coordinates of
+// representative atoms, rotated blocks for the atoms equivalent to them.
+func (l *layout) assemble(h *Hessian, results []storedPoint, opt HessianOptions) {
+	nat := len(l.rep)
+	n := 3 * nat
+	step := l.step
+	ns := len(l.steps)
+	// raw[c·n + j] = ∂g_j/∂x_c; dip[3c + m] = ∂μ_m/∂x_c.
+	raw := make([]float64, n*n)
+	dip := make([]float64, 3*n)
+	scratch := make([][]float64, ns)
+	for t := range scratch {
+		scratch[t] = make([]float64, n)
+	}
+	grads := make([][]float64, ns)
+	dips := make([][3]float64, ns)
+	for a := 0; a < nat && nat > 1; a++ {
+		if l.rep[a].job != a {
+			continue
 		}
-		p2, m2 := get(&results[j+2]), get(&results[j+3])
-		for k := range dst {
-			dst[k] = (8*(p1[k]-m1[k]) - (p2[k] - m2[k])) / (12 * step)
+		for c := 3 * a; c < 3*a+3; c++ {
+			for t := 0; t < ns; t++ {
+				grads[t], dips[t] = l.point(results, c, t, scratch[t])
+			}
+			// Steps +1, −1[, +2, −2].
+			row, drow := raw[c*n:(c+1)*n], dip[3*c:3*c+3]
+			if !opt.FourPoint {
+				for k := range row {
+					row[k] = (grads[0][k] - grads[1][k]) / (2 * step)
+				}
+				for m := range drow {
+					drow[m] = (dips[0][m] - dips[1][m]) / (2 * step)
+				}
+				continue
+			}
+			for k := range row {
+				row[k] = (8*(grads[0][k]-grads[1][k]) - (grads[2][k] - grads[3][k])) / (12 * step)
+			}
+			for m := range drow {
+				drow[m] = (8*(dips[0][m]-dips[1][m]) - (dips[2][m] - dips[3][m])) / (12 * step)
+			}
 		}
 	}
-	raw := make([]float64, n*n)
-	for i := 0; i < n && nat > 1; i++ {
-		col(i, func(p *storedPoint) []float64 { return p.Gradient }, raw[i*n:(i+1)*n])
+	// Atoms equivalent to a representative a by the operation (R, π),
+	// b = π(a): H_{π(i) b} = R H_{i a} Rᵀ, and the same for the dipole
+	// derivatives.
+	for b := 0; b < nat && nat > 1; b++ {
+		src := l.rep[b]
+		if src.job == b {
+			continue
+		}
+		a, o := src.job, &l.sym.ops[src.op]
+		r := &o.r
+		for i := 0; i < nat; i++ {
+			pi := o.perm[i]
+			var blk [3][3]float64 // blk[l][k] = H_{i a}[l][k] = raw[(3a+k)·n + 3i+l]
+			for k := 0; k < 3; k++ {
+				for m := 0; m < 3; m++ {
+					blk[m][k] = raw[(3*a+k)*n+3*i+m]
+				}
+			}
+			rot := rotateBlock(r, &blk)
+			for k := 0; k < 3; k++ {
+				for m := 0; m < 3; m++ {
+					raw[(3*b+k)*n+3*pi+m] = rot[m][k]
+				}
+			}
+		}
+		var blk [3][3]float64 // blk[m][k] = ∂μ_m/∂x_{a,k}
+		for k := 0; k < 3; k++ {
+			for m := 0; m < 3; m++ {
+				blk[m][k] = dip[3*(3*a+k)+m]
+			}
+		}
+		rot := rotateBlock(r, &blk)
+		for k := 0; k < 3; k++ {
+			for m := 0; m < 3; m++ {
+				dip[3*(3*b+k)+m] = rot[m][k]
+			}
+		}
 	}
 	h.HessianAU = make([]float64, n*n)
 	for i := 0; i < n; i++ {
@@ -258,22 +358,39 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 			h.HessianAU[i*n+j] = 0.5 * (raw[i*n+j] + raw[j*n+i])
 		}
 	}
-	if opt.Dipole {
-		h.DipoleDerivAU = make([]float64, 3*n)
-		for i := 0; i < n && nat > 1; i++ {
-			col(i, func(p *storedPoint) []float64 { return p.DipoleAU[:] }, h.DipoleDerivAU[3*i:3*i+3])
+	if !opt.Dipole {
+		return
+	}
+	h.DipoleDerivAU = dip
+	if opt.Charge != 0 && opt.MassesU != nil {
+		total := 0.0
+		for _, m := range opt.MassesU {
+			total += m
 		}
-		if opt.Charge != 0 && opt.MassesU != nil {
-			total := 0.0
-			for _, m := range opt.MassesU {
-				total += m
-			}
-			for i := 0; i < n; i++ {
-				h.DipoleDerivAU[3*i+i%3] += opt.Charge * opt.MassesU[i/3] / total
+		for i := 0; i < n; i++ {
+			h.DipoleDerivAU[3*i+i%3] += opt.Charge * opt.MassesU[i/3] / total
+		}
+	}
+}
+
+// rotateBlock returns R B Rᵀ.
+func rotateBlock(r *[3][3]float64, b *[3][3]float64) [3][3]float64 {
+	var t, out [3][3]float64
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			for k := 0; k < 3; k++ {
+				t[i][j] += r[i][k] * b[k][j]
 			}
 		}
 	}
-	return h, nil
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			for k := 0; k < 3; k++ {
+				out[i][j] += t[i][k] * r[j][k]
+			}
+		}
+	}
+	return out
 }
 
 // runDisplacements evaluates the displaced points listed in todo on k

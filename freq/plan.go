@@ -25,9 +25,10 @@ type Displacement struct {
 	Steps      int
 }
 
-// Displacements lists the displaced points of a Hessian of nat atoms in the
-// order ComputeHessian uses (coordinate-major; steps +1, −1[, +2, −2]). A
-// single atom has none: its Hessian is zero (translations only).
+// Displacements lists every displaced point of a Hessian of nat atoms
+// (coordinate-major; steps +1, −1[, +2, −2]), those ComputeHessian
+// evaluates without symmetry (PlanPoints gives those with). A single atom
+// has none: its Hessian is zero (translations only).
 func Displacements(nat int, fourPoint bool) []Displacement {
 	if nat < 2 {
 		return nil
@@ -51,19 +52,38 @@ func (d Displacement) String() string {
 	return fmt.Sprintf("atom %d %c %+d step(s)", d.Coordinate/3+1, "xyz"[d.Coordinate%3], d.Steps)
 }
 
-// setup checks the geometry and step of a Hessian and opens its work
-// directory (a store that keeps nothing when opt.WorkDir is empty). It
-// returns the step in use.
-func setup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, error) {
+// layout is what a Hessian evaluates: the reference geometry, the
+// displaced points evaluated (jobs), and how every point of the finite
+// differences and every atom's columns follow from them.
+type layout struct {
+	step  float64
+	x     []float64 // reference geometry (symmetrized with symmetry)
+	steps []int     // step multiples of each coordinate: +1, −1[, +2, −2]
+	sym   *symmetry
+	jobs  []Displacement
+	// src[c·len(steps)+t] is the job whose image under the operation op
+	// is the point of coordinate c and step steps[t]; defined for the
+	// coordinates of representative atoms only.
+	src []pointSource
+	// rep[i] is the representative atom of atom i and the operation that
+	// maps it onto i (i itself and 0, the identity, for representatives).
+	rep []pointSource
+}
+
+type pointSource struct{ job, op int }
+
+// newLayout checks the geometry and step of a Hessian and decides its
+// points.
+func newLayout(nat int, x0 []float64, opt *HessianOptions) (*layout, error) {
 	if nat < 1 {
-		return nil, 0, errors.New("freq: no atoms")
+		return nil, errors.New("freq: no atoms")
 	}
 	if len(x0) != 3*nat {
-		return nil, 0, fmt.Errorf("freq: %d coordinates for %d atoms", len(x0), nat)
+		return nil, fmt.Errorf("freq: %d coordinates for %d atoms", len(x0), nat)
 	}
 	for i, v := range x0 {
 		if !finite(v) {
-			return nil, 0, fmt.Errorf("freq: coordinate %d is %v", i+1, v)
+			return nil, fmt.Errorf("freq: coordinate %d is %v", i+1, v)
 		}
 	}
 	step := opt.StepBohr
@@ -71,19 +91,158 @@ func setup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, error) 
 		step = DefaultStepBohr
 	}
 	if !(step > 0) || step > maxStepBohr {
-		return nil, 0, fmt.Errorf("freq: finite-difference step %g bohr outside (0, %g]", step, maxStepBohr)
+		return nil, fmt.Errorf("freq: finite-difference step %g bohr outside (0, %g]", step, maxStepBohr)
+	}
+	l := &layout{step: step, steps: opt.stepList()}
+	kinds, err := opt.symmetryKinds(nat)
+	if err != nil {
+		return nil, err
+	}
+	tol := opt.SymmetryToleranceBohr
+	if tol <= 0 || !finite(tol) {
+		tol = DefaultSymmetryToleranceBohr
+	}
+	if kinds != nil {
+		l.sym = findSymmetry(x0, kinds, tol)
+	} else {
+		l.sym = noSymmetry(x0)
+	}
+	l.x = l.sym.coords
+	ops := l.sym.ops
+	l.rep = make([]pointSource, nat)
+	for i := range l.rep {
+		l.rep[i] = pointSource{job: -1}
+	}
+	l.src = make([]pointSource, 3*nat*len(l.steps))
+	for a := 0; a < nat && nat > 1; a++ {
+		if l.rep[a].job >= 0 {
+			continue
+		}
+		for g, o := range ops {
+			if b := o.perm[a]; l.rep[b].job < 0 {
+				l.rep[b] = pointSource{job: a, op: g}
+			}
+		}
+		first := len(l.jobs)
+		for k := 0; k < 3; k++ {
+			for t, s := range l.steps {
+				c := 3*a + k
+				src := pointSource{job: -1}
+				if opt.AxisOperationsExact {
+				search:
+					for g := range ops {
+						o := &ops[g]
+						if g == 0 || o.perm[a] != a || !o.axisOp() {
+							continue
+						}
+						for j := first; j < len(l.jobs); j++ {
+							kk, sign := o.image(l.jobs[j].Coordinate - 3*a)
+							if kk == k && sign*l.jobs[j].Steps == s {
+								src = pointSource{job: j, op: g}
+								break search
+							}
+						}
+					}
+				}
+				if src.job < 0 {
+					src = pointSource{job: len(l.jobs)}
+					l.jobs = append(l.jobs, Displacement{Coordinate: c, Steps: s})
+				}
+				l.src[c*len(l.steps)+t] = src
+			}
+		}
+	}
+	return l, nil
+}
+
+// symmetryKinds returns the kinds of the atoms for the symmetry search
+// (nil: no symmetry): SymmetryKinds, refined by mass for a charged
+// molecule whose dipole origin is the centre of mass.
+func (o *HessianOptions) symmetryKinds(nat int) ([]int, error) {
+	if o.SymmetryKinds == nil {
+		return nil, nil
+	}
+	if len(o.SymmetryKinds) != nat {
+		return nil, fmt.Errorf("freq: %d symmetry kinds for %d atoms", len(o.SymmetryKinds), nat)
+	}
+	if o.Charge == 0 || o.MassesU == nil {
+		return o.SymmetryKinds, nil
+	}
+	type key struct {
+		kind int
+		mass float64
+	}
+	index := map[key]int{}
+	out := make([]int, nat)
+	for i, k := range o.SymmetryKinds {
+		kk := key{k, o.MassesU[i]}
+		v, ok := index[kk]
+		if !ok {
+			v = len(index)
+			index[kk] = v
+		}
+		out[i] = v
+	}
+	return out, nil
+}
+
+// point returns the gradient and dipole of the point of coordinate c and
+// step index t of a representative atom, from the evaluated points
+// (grad is scratch of length 3N when the point is an image).
+func (l *layout) point(results []storedPoint, c, t int, grad []float64) ([]float64, [3]float64) {
+	src := l.src[c*len(l.steps)+t]
+	p := &results[src.job]
+	if src.op == 0 {
+		return p.Gradient, p.DipoleAU
+	}
+	o := &l.sym.ops[src.op]
+	o.apply(p.Gradient, grad)
+	return grad, o.rotate(p.DipoleAU)
+}
+
+// setup decides the points of a Hessian and opens its work directory (a
+// store that keeps nothing when opt.WorkDir is empty).
+func setup(nat int, x0 []float64, opt *HessianOptions) (*store, *layout, error) {
+	l, err := newLayout(nat, x0, opt)
+	if err != nil {
+		return nil, nil, err
 	}
 	man := &storeManifest{Format: storeFormat, Version: storeVersion, Tag: opt.Tag, NumAtoms: nat,
-		CoordsBohr: append([]float64(nil), x0...), StepBohr: step, FourPoint: opt.FourPoint, Dipole: opt.Dipole}
+		CoordsBohr: append([]float64(nil), l.x...), StepBohr: l.step, FourPoint: opt.FourPoint, Dipole: opt.Dipole}
 	st, _, err := openStore(opt.WorkDir, man, opt.DiscardStale)
-	return st, step, err
+	return st, l, err
+}
+
+// Points describes the points of a Hessian.
+type Points struct {
+	// CoordsBohr is the reference geometry: the input, made exactly
+	// symmetric when HessianOptions.SymmetryKinds is set.
+	CoordsBohr []float64
+	// Displacements are the displaced points evaluated, in the order
+	// ComputeHessian uses.
+	Displacements []Displacement
+	// SymmetryOperations is the order of the point group used (1: none).
+	SymmetryOperations int
+	// SymmetryShiftBohr is the largest distance an atom moved to make
+	// the geometry symmetric.
+	SymmetryShiftBohr float64
+}
+
+// PlanPoints returns the points ComputeHessian evaluates with these
+// options for nat atoms at x0, without evaluating or saving anything.
+func PlanPoints(nat int, x0 []float64, opt HessianOptions) (*Points, error) {
+	l, err := newLayout(nat, x0, &opt)
+	if err != nil {
+		return nil, err
+	}
+	return &Points{CoordsBohr: l.x, Displacements: l.jobs, SymmetryOperations: len(l.sym.ops), SymmetryShiftBohr: l.sym.shiftBohr}, nil
 }
 
 // pieceSetup is setup for a piecewise Hessian, which needs a work
 // directory.
-func pieceSetup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, error) {
+func pieceSetup(nat int, x0 []float64, opt *HessianOptions) (*store, *layout, error) {
 	if opt.WorkDir == "" {
-		return nil, 0, errors.New("freq: a piecewise Hessian needs a work directory")
+		return nil, nil, errors.New("freq: a piecewise Hessian needs a work directory")
 	}
 	return setup(nat, x0, opt)
 }
@@ -95,14 +254,14 @@ func pieceSetup(nat int, x0 []float64, opt *HessianOptions) (*store, float64, er
 // the caller saves for the displaced points.
 func ComputeReference(ctx context.Context, s gradient.Surface, x0 []float64, opt HessianOptions) (computed bool, err error) {
 	nat := s.NumAtoms()
-	st, step, err := pieceSetup(nat, x0, &opt)
+	st, l, err := pieceSetup(nat, x0, &opt)
 	if err != nil {
 		return false, err
 	}
-	if _, ok := st.load(referenceName, 3*nat, step, -1, 0); ok {
+	if _, ok := st.load(referenceName, 3*nat, l.step, -1, 0); ok {
 		return false, nil
 	}
-	_, err = computePoint(ctx, s, x0, step, Displacement{Coordinate: -1}, opt.Dipole, max(opt.Threads, 1), nil, st)
+	_, err = computePoint(ctx, s, l.x, l.step, Displacement{Coordinate: -1}, opt.Dipole, max(opt.Threads, 1), nil, st)
 	return err == nil, err
 }
 
@@ -113,10 +272,11 @@ func ComputeReference(ctx context.Context, s gradient.Surface, x0 []float64, opt
 // killed attempt at the same point are removed first.
 func ComputeDisplacement(ctx context.Context, s gradient.Surface, x0 []float64, opt HessianOptions, d Displacement) (computed bool, err error) {
 	nat := s.NumAtoms()
-	st, step, err := pieceSetup(nat, x0, &opt)
+	st, l, err := pieceSetup(nat, x0, &opt)
 	if err != nil {
 		return false, err
 	}
+	step := l.step
 	if d.Coordinate < 0 || d.Coordinate >= 3*nat || d.Steps == 0 || abs(d.Steps) > 2 || (abs(d.Steps) == 2 && !opt.FourPoint) {
 		return false, fmt.Errorf("freq: no displaced point %+v in this Hessian", d)
 	}
@@ -129,22 +289,22 @@ func ComputeDisplacement(ctx context.Context, s gradient.Surface, x0 []float64, 
 			os.Remove(f)
 		}
 	}
-	_, err = computePoint(ctx, s, x0, step, d, opt.Dipole, max(opt.Threads, 1), nil, st)
+	_, err = computePoint(ctx, s, l.x, step, d, opt.Dipole, max(opt.Threads, 1), nil, st)
 	return err == nil, err
 }
 
 // SavedPoints reports which points of the Hessian described by opt (at x0,
 // nat atoms) are saved in opt.WorkDir: whether the reference is, and the
-// displaced points that are not (in the order of Displacements). The work
+// displaced points that are not (in the order of PlanPoints). The work
 // directory must belong to this calculation.
 func SavedPoints(nat int, x0 []float64, opt HessianOptions) (haveReference bool, missing []Displacement, err error) {
-	st, step, err := pieceSetup(nat, x0, &opt)
+	st, l, err := pieceSetup(nat, x0, &opt)
 	if err != nil {
 		return false, nil, err
 	}
-	_, haveReference = st.load(referenceName, 3*nat, step, -1, 0)
-	for _, d := range Displacements(nat, opt.FourPoint) {
-		if _, ok := st.load(d.FileName(), 3*nat, step, d.Coordinate, d.Steps); !ok {
+	_, haveReference = st.load(referenceName, 3*nat, l.step, -1, 0)
+	for _, d := range l.jobs {
+		if _, ok := st.load(d.FileName(), 3*nat, l.step, d.Coordinate, d.Steps); !ok {
 			missing = append(missing, d)
 		}
 	}

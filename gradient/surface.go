@@ -178,6 +178,35 @@ func (s *SCFSurface) Evaluations() int { return int(s.evals.Load()) }
 // Frame is the orientation of the DFT grids, fixed for the surface's life.
 func (s *SCFSurface) Frame() grid.Frame { return s.frame }
 
+// AxisSymmetric is implemented by surfaces that can tell whether they are
+// exactly invariant (not only to within their numerical noise) under the
+// symmetry operations of a molecule that permute the coordinate axes with
+// signs; freq.HessianOptions.AxisOperationsExact takes the answer.
+type AxisSymmetric interface {
+	AxisOperationsExact() bool
+}
+
+// AxisOperationsExact reports whether the surface is exactly invariant under
+// symmetry operations that permute the coordinate axes with signs. Without
+// a DFT grid it is (to SCF convergence). With one it is when the grid frame
+// lies along the coordinate axes: the Lebedev–Laikov rules are invariant
+// under the 48 operations of the octahedral group about their own axes,
+// and the radial grids, pruning and Becke partitioning depend only on
+// elements and distances.
+func (s *SCFSurface) AxisOperationsExact() bool {
+	if fn := s.cfg.Method; fn == nil || !fn.NeedsGrid() {
+		return true
+	}
+	for _, row := range s.frame {
+		for _, v := range row {
+			if a := math.Abs(v); a > 1e-10 && math.Abs(a-1) > 1e-10 {
+				return false
+			}
+		}
+	}
+	return true
+}
+
 // WarmStart returns a copy of the warm-start state (the density the next
 // evaluation starts from), or nil before the first evaluation. It is plain
 // data (JSON-serializable) for saving and restoring a long calculation.

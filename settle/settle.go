@@ -144,6 +144,10 @@ type Options struct {
 	NewSurface func(mol *molecule.Molecule, lvl Level) (gradient.Surface, error)
 	// Log, if set, receives one line per stage.
 	Log func(string)
+	// NoSymmetry evaluates every displaced point of the Hessians; by
+	// default only those that are not images of others under the
+	// molecule's point group are (freq.HessianOptions.SymmetryKinds).
+	NoSymmetry bool
 	// WorkDir, if set, keeps every finished relaxation step and displaced
 	// point, so that a run stopped at any moment continues there when
 	// started again with the same inputs (see work.go). The caller removes
@@ -411,13 +415,25 @@ func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, cri
 func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64, cycle int) (*freq.Hessian, *freq.Analysis, error) {
 	masses := massesOf(r.mol)
 	before := s.Evaluations()
-	h, err := freq.ComputeHessian(ctx, s, x, freq.HessianOptions{StepBohr: r.opts.StepBohr, Dipole: true,
+	hopts := freq.HessianOptions{StepBohr: r.opts.StepBohr, Dipole: true,
 		Threads: r.lvl.SCF.Threads, Charge: float64(r.mol.Charge), MassesU: masses,
-		WorkDir: r.work.hessianDir(cycle), Tag: "settle " + r.lvl.tag(), DiscardStale: true})
+		WorkDir: r.work.hessianDir(cycle), Tag: "settle " + r.lvl.tag(), DiscardStale: true}
+	if !r.opts.NoSymmetry {
+		hopts.SymmetryKinds = atomicNumbers(r.mol)
+		if as, ok := s.(gradient.AxisSymmetric); ok {
+			hopts.AxisOperationsExact = as.AxisOperationsExact()
+		}
+	}
+	h, err := freq.ComputeHessian(ctx, s, x, hopts)
 	r.evals += s.Evaluations() - before
 	if err != nil {
 		return nil, nil, fmt.Errorf("settle: Hessian: %w", err)
 	}
+	if h.SymmetryOperations > 1 {
+		r.log("Hessian: %d displaced points (point group of order %d; geometry symmetrized by %.1e bohr)",
+			h.Displacements, h.SymmetryOperations, h.SymmetryShiftBohr)
+	}
+	x = h.CoordsBohr
 	an, err := freq.Analyze(freq.System{Z: atomicNumbers(r.mol), MassesU: masses, CoordsBohr: x,
 		HessianAU: h.HessianAU, DipoleDerivAU: h.DipoleDerivAU})
 	if err != nil {
@@ -514,6 +530,7 @@ func (r *runner) run(ctx context.Context) (*Result, error) {
 		if h, an, err = r.modes(ctx, s, x, cycle); err != nil {
 			return nil, err
 		}
+		x = h.CoordsBohr // made exactly symmetric when symmetry is used
 		imag = r.imaginary(an)
 		sum.Cycles = cycle
 		if len(imag) == 0 || cycle >= r.opts.MaxCycles {

@@ -43,6 +43,9 @@ func Key(mol *molecule.Molecule, lvl Level, opts Options) string {
 	if opts.EnergyAt != nil {
 		fmt.Fprintf(&b, "energy-at %s\n", opts.EnergyAt.tag())
 	}
+	if opts.NoSymmetry {
+		fmt.Fprintf(&b, "nosymmetry\n")
+	}
 	fmt.Fprintf(&b, "step=%g maxsteps=%d cycles=%d threshold=%g criteria=strict T=%g p=%g\n",
 		opts.StepBohr, opts.MaxSteps, opts.MaxCycles, opts.ThresholdCm1, opts.TemperatureK, opts.PressurePa)
 	sum := sha256.Sum256([]byte(b.String()))

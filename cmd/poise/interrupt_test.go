@@ -49,7 +49,9 @@ func TestModesKilledAndResumed(t *testing.T) {
 	if testing.Short() {
 		t.Skip("20 interrupted runs")
 	}
-	level := []string{"--method", "hf", "--basis", "3-21g", "--threads", "2"}
+	// Every displaced point (--no-symmetry): enough of them to be killed
+	// in the middle of the run.
+	level := []string{"--method", "hf", "--basis", "3-21g", "--threads", "2", "--no-symmetry"}
 	want := modesJSON(t, append([]string{"modes", modesWaterXYZ, "--out", t.TempDir(), "--json"}, level...)...)
 
 	out := filepath.Join(t.TempDir(), "out")

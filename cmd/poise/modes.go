@@ -44,6 +44,7 @@ type modesFlags struct {
 	masses     string
 	step       float64
 	fourPoint  bool
+	noSymmetry bool
 	concurrent int
 	fwhm       float64
 	plan       string
@@ -71,6 +72,11 @@ analysis: wavenumbers (imaginary ones marked "i"; negative in JSON), IR intensit
 reduced masses, force constants, zero-point energy, and for each mode the internal
 coordinates it moves most. Translations and rotations are projected out (3N−6 modes,
 3N−5 for linear molecules). Masses are the most abundant isotopes unless changed.
+
+Symmetry: when the structure has a point group (within 0.001 bohr; it is then made exactly
+symmetric), only one atom of each set of equivalent atoms is displaced and the Hessian
+columns of the others are its rotated images (benzene: 8 displaced points instead of 72);
+--no-symmetry displaces every atom.
 
 The structure should be a minimum relaxed tightly (poise relax --converge strict); a
 warning says so when the gradient norm, translations and rotations removed, exceeds
@@ -114,6 +120,7 @@ with DIR/resubmit.sbatch for just those (exit status 5). 'poise task --help' tel
 	fl.StringVar(&f.masses, "mass", "", "masses ATOM=U in u, comma-separated, atoms from 1 (e.g. 2=2.0141)")
 	fl.Float64Var(&f.step, "step", freq.DefaultStepBohr, "finite-difference displacement in bohr")
 	fl.BoolVar(&f.fourPoint, "four-point", false, "fourth-order differences (±step, ±2·step; twice the gradients)")
+	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point (by default those that are images of others under the point group are skipped)")
 	fl.IntVar(&f.concurrent, "concurrent", 0, "displaced points computed at once, sharing --threads (default: one per thread)")
 	fl.Float64Var(&f.fwhm, "fwhm", defaultFWHMCm1, "Lorentzian full width at half maximum of the IR picture, cm⁻¹")
 	fl.StringVar(&f.plan, "plan", "", "compute the reference point, write every displaced point as a task into DIR for a batch system, with a Slurm job-array script; nothing else is computed")
@@ -326,7 +333,7 @@ type modesCalc struct {
 
 // prepareModes reads the structure in path at the level of lf and prepares
 // the Hessian calculation whose points are kept in work.
-func prepareModes(path string, lf *levelFlags, step float64, fourPoint bool, work string) (*modesCalc, error) {
+func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmetry bool, work string) (*modesCalc, error) {
 	s, err := lf.prepare(path)
 	if err != nil {
 		return nil, err
@@ -344,19 +351,26 @@ func prepareModes(path string, lf *levelFlags, step float64, fourPoint bool, wor
 	for i, a := range s.mol.Atoms {
 		masses[i] = a.Mass
 	}
-	return &modesCalc{s: s, conv: conv, surf: surf, x0: gradient.Coordinates(s.mol), masses: masses,
-		hopts: freq.HessianOptions{
-			StepBohr: step, FourPoint: fourPoint, Dipole: true, Threads: lf.threads,
-			WorkDir: work, Tag: levelTag(s, conv),
-			Charge: float64(s.mol.Charge), MassesU: masses,
-		}}, nil
+	hopts := freq.HessianOptions{
+		StepBohr: step, FourPoint: fourPoint, Dipole: true, Threads: lf.threads,
+		WorkDir: work, Tag: levelTag(s, conv),
+		Charge: float64(s.mol.Charge), MassesU: masses,
+	}
+	if !noSymmetry {
+		hopts.SymmetryKinds = make([]int, len(s.mol.Atoms))
+		for i, a := range s.mol.Atoms {
+			hopts.SymmetryKinds[i] = a.Z
+		}
+		hopts.AxisOperationsExact = surf.AxisOperationsExact()
+	}
+	return &modesCalc{s: s, conv: conv, surf: surf, x0: gradient.Coordinates(s.mol), masses: masses, hopts: hopts}, nil
 }
 
 // computeModes computes the Hessian of the structure in path and returns the
 // modes file before the analysis.
 func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags, outDir string) (*freq.File, *freq.Hessian, error) {
 	work := filepath.Join(outDir, "displacements")
-	mc, err := prepareModes(path, lf, f.step, f.fourPoint, work)
+	mc, err := prepareModes(path, lf, f.step, f.fourPoint, f.noSymmetry, work)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -409,7 +423,7 @@ func (mc *modesCalc) modesFile(path string, h *freq.Hessian, threads, concurrent
 	file := &freq.File{
 		Format: freq.FileFormat, FormatVersion: freq.FileFormatVersion,
 		Formula: s.mol.Formula(), Charge: s.mol.Charge, Multiplicity: s.mol.Multiplicity,
-		GeometryAngstrom: s.mol.PositionsAngstrom(), MassesU: mc.masses,
+		GeometryAngstrom: geometryAngstrom(h.CoordsBohr), MassesU: mc.masses,
 		Level:    &freq.Level{Method: s.method, Basis: s.set.Name, AngularFunctions: mc.conv, Unrestricted: s.opts.Unrestricted || s.mol.Multiplicity > 1},
 		StepBohr: h.StepBohr, FourPoint: h.FourPoint, GradientAU: h.GradientAU,
 		DipoleAU: &h.DipoleAU, Warnings: []string{},
@@ -431,7 +445,7 @@ func (mc *modesCalc) modesFile(path string, h *freq.Hessian, threads, concurrent
 		file.HessianAU[i] = h.HessianAU[i*n : (i+1)*n]
 		file.DipoleDerivAU[i] = h.DipoleDerivAU[3*i : 3*i+3]
 	}
-	gnorm, err := freq.InternalGradientNorm(mc.x0, h.GradientAU)
+	gnorm, err := freq.InternalGradientNorm(h.CoordsBohr, h.GradientAU)
 	if err != nil {
 		return nil, err
 	}
@@ -452,10 +466,25 @@ func (mc *modesCalc) modesFile(path string, h *freq.Hessian, threads, concurrent
 		ReferenceSCFIterations: h.ReferenceSCFIterations, AsymmetryAU: h.AsymmetryAU,
 		Threads: threads, Concurrent: concurrent, WallSeconds: wall.Seconds(),
 	}
+	if h.SymmetryOperations > 1 {
+		file.Computation.SymmetryOperations = h.SymmetryOperations
+		file.Computation.SymmetryShiftBohr = h.SymmetryShiftBohr
+	}
 	if len(h.SCFIterations) > 0 {
 		file.Computation.MeanSCFIterations = float64(sum) / float64(len(h.SCFIterations))
 	}
 	return file, nil
+}
+
+// geometryAngstrom converts 3N coordinates in bohr to rows in Å.
+func geometryAngstrom(xBohr []float64) [][3]float64 {
+	out := make([][3]float64, len(xBohr)/3)
+	for i := range out {
+		for k := 0; k < 3; k++ {
+			out[i][k] = xBohr[3*i+k] / units.AngstromBohr
+		}
+	}
+	return out
 }
 
 // countDisplacements counts the saved displaced points in a work directory.
@@ -518,6 +547,9 @@ func printModes(w io.Writer, file *freq.File, an *freq.Analysis, sc freq.Scaling
 		fmt.Fprintf(w, "Hessian: %s of analytic gradients, step %g bohr", formulaName, file.StepBohr)
 		if c := file.Computation; c != nil {
 			fmt.Fprintf(w, "; %d displaced points (%d computed, %d reused), %.1f s", c.Displacements, c.Computed, c.Reused, c.WallSeconds)
+			if c.SymmetryOperations > 1 {
+				fmt.Fprintf(w, "; the others are images under the %d operations of the point group", c.SymmetryOperations)
+			}
 		}
 		fmt.Fprintln(w)
 	}

@@ -28,7 +28,7 @@ const displacementsDir = "displacements"
 
 // planModesCalc prepares the Hessian calculation of a modes plan.
 func planModesCalc(p *planFile, threads int) (*modesCalc, error) {
-	return prepareModes(p.path(p.Input), p.Level.flags(threads), p.StepBohr, p.FourPoint, p.path(displacementsDir))
+	return prepareModes(p.path(p.Input), p.Level.flags(threads), p.StepBohr, p.FourPoint, p.NoSymmetry, p.path(displacementsDir))
 }
 
 // planSavedPoints reports the saved points of a modes plan.
@@ -61,9 +61,19 @@ func planModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags) e
 	}
 	p := &planFile{Format: planFormat, Version: planVersion, Kind: planKindM, ProgramVersion: version,
 		Created: time.Now().UTC().Format(time.RFC3339), Source: path, Input: "input.xyz", InputSHA256: sum,
-		Level: levelOf(lf), ThreadsPerTask: lf.threads, StepBohr: f.step, FourPoint: f.fourPoint, dir: f.plan}
-	x0 := gradient.Coordinates(s.mol)
-	for k, d := range freq.Displacements(len(s.mol.Atoms), f.fourPoint) {
+		Level: levelOf(lf), ThreadsPerTask: lf.threads, StepBohr: f.step, FourPoint: f.fourPoint, NoSymmetry: f.noSymmetry, dir: f.plan}
+	// The points: those of the calculation the tasks and the assembly
+	// rebuild from the plan (symmetry-unique unless --no-symmetry).
+	pc, err := prepareModes(path, lf, f.step, f.fourPoint, f.noSymmetry, "")
+	if err != nil {
+		return err
+	}
+	pts, err := freq.PlanPoints(len(s.mol.Atoms), pc.x0, pc.hopts)
+	if err != nil {
+		return usageErr(fmt.Errorf("%s: %w", path, err))
+	}
+	x0 := pts.CoordsBohr
+	for k, d := range pts.Displacements {
 		geo := make([][3]float64, len(s.mol.Atoms))
 		for a := range geo {
 			for c := 0; c < 3; c++ {

@@ -93,25 +93,26 @@ func TestModesPlanLocal(t *testing.T) {
 	if !strings.Contains(out, "sbatch ") || !strings.Contains(out, "poise modes --assemble") {
 		t.Errorf("plan output lacks the commands:\n%s", out)
 	}
-	// 18 tasks, at most 7 per array: three scripts.
+	// Water in the yz plane, C2v: 9 symmetry-unique displaced points (O:
+	// +x, +y, ±z; one H: +x, ±y, ±z), at most 7 per array: two scripts.
 	scripts, _ := filepath.Glob(filepath.Join(dir, "submit-*.sbatch"))
-	if len(scripts) != 3 {
-		t.Fatalf("%d scripts for 18 tasks of at most 7: %v", len(scripts), scripts)
+	if len(scripts) != 2 {
+		t.Fatalf("%d scripts for 9 tasks of at most 7: %v", len(scripts), scripts)
 	}
-	s3, _ := os.ReadFile(filepath.Join(dir, "submit-3.sbatch"))
-	for _, want := range []string{"#SBATCH --array=0-3\n", "#SBATCH --cpus-per-task=1\n", "#SBATCH --partition=short\n", "index=$((SLURM_ARRAY_TASK_ID + 14))", "task run "} {
-		if !strings.Contains(string(s3), want) {
-			t.Errorf("submit-3.sbatch lacks %q:\n%s", want, s3)
+	s2, _ := os.ReadFile(filepath.Join(dir, "submit-2.sbatch"))
+	for _, want := range []string{"#SBATCH --array=0-1\n", "#SBATCH --cpus-per-task=1\n", "#SBATCH --partition=short\n", "index=$((SLURM_ARRAY_TASK_ID + 7))", "task run "} {
+		if !strings.Contains(string(s2), want) {
+			t.Errorf("submit-2.sbatch lacks %q:\n%s", want, s2)
 		}
 	}
-	for _, f := range []string{"plan.json", "input.xyz", "reference-state.json", "tasks/0000.json", "tasks/0017.json", "displacements/reference.json"} {
+	for _, f := range []string{"plan.json", "input.xyz", "reference-state.json", "tasks/0000.json", "tasks/0008.json", "displacements/reference.json"} {
 		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
 			t.Errorf("plan directory: %v", err)
 		}
 	}
 	// Assembling before the tasks: every task is listed, exit status 5.
 	_, errOut, code, _ = execCLI(t, false, "modes", "--assemble", dir)
-	if code != exitPlanOpen || !strings.Contains(errOut, "18 of 18 tasks") {
+	if code != exitPlanOpen || !strings.Contains(errOut, "9 of 9 tasks") {
 		t.Errorf("early assemble: exit %d\n%s", code, errOut)
 	}
 	out, errOut, code, _ = execCLI(t, false, "task", "run-all", dir, "--jobs", "2", "--threads", "2", "--json")
@@ -119,15 +120,21 @@ func TestModesPlanLocal(t *testing.T) {
 		t.Fatalf("run-all: exit %d\n%s\n%s", code, out, errOut)
 	}
 	var sum runAllSummary
-	if err := json.Unmarshal([]byte(out), &sum); err != nil || len(sum.Computed) != 18 || len(sum.Skipped) != 0 {
+	if err := json.Unmarshal([]byte(out), &sum); err != nil || len(sum.Computed) != 9 || len(sum.Skipped) != 0 {
 		t.Fatalf("run-all: %+v, %v", sum, err)
 	}
 	got := modesJSON(t, "modes", "--assemble", dir, "--json")
-	if c := got.Computation; c == nil || c.Gradients != 0 || c.Reused != 18 {
-		t.Errorf("assembling computed something: %+v", got.Computation)
+	if c := got.Computation; c == nil || c.Gradients != 0 || c.Reused != 9 || c.SymmetryOperations != 4 {
+		t.Errorf("assembling computed something, or without symmetry: %+v", got.Computation)
 	}
 	want := modesJSON(t, append([]string{"modes", modesWaterXYZ, "--threads", "2", "--out", t.TempDir(), "--json"}, level...)...)
 	sameModes(t, got, want)
+	// Every point computed: the same Hessian (HF has the symmetry exactly).
+	full := modesJSON(t, append([]string{"modes", modesWaterXYZ, "--threads", "2", "--out", t.TempDir(), "--json", "--no-symmetry"}, level...)...)
+	if c := full.Computation; c == nil || c.Displacements != 18 {
+		t.Errorf("--no-symmetry: %+v", full.Computation)
+	}
+	sameModes(t, got, full)
 	if _, err := os.Stat(filepath.Join(dir, "water.modes.json")); err != nil {
 		t.Errorf("assemble writes into the plan directory: %v", err)
 	}
@@ -148,8 +155,9 @@ func TestModesPlanKilledTask(t *testing.T) {
 	if testing.Short() {
 		t.Skip("B3LYP/3-21G water: 19 gradients")
 	}
-	// B3LYP: each point takes long enough (the grid) to be killed midway.
-	level := []string{"--method", "b3lyp", "--basis", "3-21g"}
+	// B3LYP: each point takes long enough (the grid) to be killed midway;
+	// every displaced point a task (--no-symmetry), 18 of them.
+	level := []string{"--method", "b3lyp", "--basis", "3-21g", "--no-symmetry"}
 	dir := filepath.Join(t.TempDir(), "plan")
 	if _, e, code, _ := execCLI(t, false, append([]string{"modes", modesWaterXYZ, "--plan", dir, "--threads", "1"}, level...)...); code != exitOK {
 		t.Fatalf("plan: %s", e)

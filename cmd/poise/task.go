@@ -117,6 +117,8 @@ type planFile struct {
 	// Modes plans.
 	StepBohr  float64 `json:"step_bohr,omitempty"`
 	FourPoint bool    `json:"four_point,omitempty"`
+	// NoSymmetry: every displaced point is a task, images included.
+	NoSymmetry bool `json:"no_symmetry,omitempty"`
 	// Reaction plans: the results store the tasks fill.
 	Store string     `json:"store,omitempty"`
 	Tasks []planTask `json:"tasks"`
