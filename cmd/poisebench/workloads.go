@@ -198,6 +198,14 @@ type countingSurface struct {
 	iters *atomic.Int64
 }
 
+// AxisOperationsExact forwards the wrapped surface's answer (see
+// gradient.AxisSymmetric), so that Hessians use the same symmetry as
+// without the wrapper.
+func (c countingSurface) AxisOperationsExact() bool {
+	as, ok := c.Surface.(gradient.AxisSymmetric)
+	return ok && as.AxisOperationsExact()
+}
+
 func (c countingSurface) Evaluate(ctx context.Context, x []float64, req gradient.Request, out *gradient.Point) error {
 	err := c.Surface.Evaluate(ctx, x, req, out)
 	c.iters.Add(int64(out.SCFIterations))
