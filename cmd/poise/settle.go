@@ -45,6 +45,7 @@ type settleFlags struct {
 	energyAt     string
 	storeDir     string
 	noStore      bool
+	noSymmetry   bool
 }
 
 func newSettleCmd() *cobra.Command {
@@ -94,6 +95,7 @@ reuses them without any SCF.`,
 	fl.StringVar(&f.energyAt, "energy-at", "", "final electronic energy at METHOD/BASIS on the settled geometry")
 	fl.StringVar(&f.storeDir, "store", "", "results store directory (default: $XDG_CACHE_HOME/poise or ~/.cache/poise)")
 	fl.BoolVar(&f.noStore, "no-store", false, "neither read nor write the results store")
+	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point of the Hessians (by default images under the point group are skipped)")
 	return cmd
 }
 
@@ -163,6 +165,7 @@ func runSettle(cmd *cobra.Command, path string, lf *levelFlags, f *settleFlags) 
 	opts.ThresholdCm1 = f.thresholdCm1
 	opts.StepBohr = f.step
 	opts.MaxSteps = f.maxSteps
+	opts.NoSymmetry = f.noSymmetry
 	opts.ProgramVersion = version
 	if f.prerelax != "" {
 		if opts.Prerelax, err = otherLevel("prerelax", f.prerelax, s, false); err != nil {

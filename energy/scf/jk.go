@@ -18,11 +18,12 @@ import (
 const schwarzThreshold = 1e-12
 
 // densityThreshold is the density-weighted screening threshold of one
-// build: a quartet is skipped when Q_ij·Q_kl times the largest density
-// element it is contracted with (|D| over the shell pairs kl and ij for
-// Coulomb, ik, jl, il and jk for exchange) is below it (Häser & Ahlrichs,
-// J. Comput. Chem. 10, 104 (1989), eq. 10). Each skipped quartet changes a
-// Fock element by less than 4·densityThreshold.
+// build: a quartet's Coulomb (exchange) contraction is skipped when
+// Q_ij·Q_kl times the largest density element it is contracted with (|D|
+// over the shell pairs kl and ij for Coulomb, ik, jl, il and jk for
+// exchange) is below it, and the quartet is not computed when both are
+// (Häser & Ahlrichs, J. Comput. Chem. 10, 104 (1989), eq. 10). Each skipped
+// contraction changes a Fock element by less than 4·densityThreshold.
 const densityThreshold = 1e-12
 
 // Work chunks: the canonical quartets are cut, in their fixed order, into
@@ -502,13 +503,17 @@ func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float
 	wantK := len(dens) > 0
 	for q := jk.chunks[c]; q < jk.chunks[c+1]; q++ {
 		si, sj, sk, sl := int(jk.quartets[4*q]), int(jk.quartets[4*q+1]), int(jk.quartets[4*q+2]), int(jk.quartets[4*q+3])
-		// Density-weighted screening.
-		dm := max(dmax[si*ns+sj], dmax[sk*ns+sl])
-		if wantK {
-			dm = max(dm, dmax[si*ns+sk], dmax[sj*ns+sl], dmax[si*ns+sl], dmax[sj*ns+sk])
-		}
-		if !jk.exact && jk.schwarz[si*ns+sj]*jk.schwarz[sk*ns+sl]*dm < densityThreshold {
-			continue
+		// Density-weighted screening, separately for the Coulomb and the
+		// exchange contractions: far apart, a quartet often matters for
+		// one of them only.
+		doJ, doK := true, wantK
+		if !jk.exact {
+			qq := jk.schwarz[si*ns+sj] * jk.schwarz[sk*ns+sl]
+			doJ = qq*max(dmax[si*ns+sj], dmax[sk*ns+sl]) >= densityThreshold
+			doK = wantK && qq*max(dmax[si*ns+sk], dmax[sj*ns+sl], dmax[si*ns+sl], dmax[sj*ns+sk]) >= densityThreshold
+			if !doJ && !doK {
+				continue
+			}
 		}
 		var v []float64
 		if jk.incore != nil {
@@ -547,8 +552,13 @@ func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float
 						if val == 0 {
 							continue
 						}
-						jab += dtot[rowC+fd] * val
-						jm[rowC+fd] += hj * dab * val
+						if doJ {
+							jab += dtot[rowC+fd] * val
+							jm[rowC+fd] += hj * dab * val
+						}
+						if !doK {
+							continue
+						}
 						for s, ds := range dens {
 							ks := km[s]
 							x := hk * val
@@ -559,7 +569,9 @@ func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float
 						}
 					}
 				}
-				jm[fa*n+fb] += hj * jab
+				if doJ {
+					jm[fa*n+fb] += hj * jab
+				}
 			}
 		}
 	}

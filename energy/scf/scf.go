@@ -351,6 +351,14 @@ func runLadder(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell
 	guess := opt.StartGuess
 	if g := opt.Guess; g != nil && g.NBF == n && len(g.Density) > 0 {
 		dens = adaptDensity(g.Density, nspin)
+		if len(g.Density) == nspin {
+			// The density of a nearby geometry is not idempotent in
+			// this geometry's overlap metric; purifying it removes the
+			// first-order error that the moved basis functions make.
+			for sp := range dens {
+				dens[sp] = purifyDensity(dens[sp], p.s, n, p.occ[sp])
+			}
+		}
 		res.Guess = "previous density"
 	} else {
 		dens, err = startingDensity(ctx, p, guess, opt)
@@ -588,6 +596,64 @@ func adaptDensity(in [][]float64, nspin int) [][]float64 {
 		a[i] = 0.5 * v
 	}
 	return [][]float64{a, append([]float64(nil), a...)}
+}
+
+// purifyDensity returns the density d (n×n, occupation numbers occ, all
+// equal) made idempotent in the metric s by McWeeny's purification
+// (R. McWeeny, Rev. Mod. Phys. 32, 335 (1960)), X ← 3XSX − 2XSXSX with
+// X = d/occ, which converges quadratically for a density near an
+// idempotent one (the density of a nearby geometry). It returns d itself
+// when the purification does not converge or changes the electron count.
+func purifyDensity(d, s []float64, n int, occ []float64) []float64 {
+	if len(occ) == 0 {
+		return d
+	}
+	w := occ[0]
+	for _, o := range occ {
+		if o != w {
+			return d
+		}
+	}
+	x := make([]float64, len(d))
+	for i, v := range d {
+		x[i] = v / w
+	}
+	prev := math.Inf(1)
+	for k := 0; k < 8; k++ {
+		xs := mul(x, n, n, s, n)
+		xsx := mul(xs, n, n, x, n)
+		dev := 0.0
+		for i := range x {
+			dev = math.Max(dev, math.Abs(xsx[i]-x[i]))
+		}
+		if dev < 1e-13 {
+			break
+		}
+		if dev > 0.5*prev || dev > 0.25 {
+			return d // not converging: too far from idempotent
+		}
+		prev = dev
+		xsxsx := mul(xs, n, n, xsx, n)
+		for i := range x {
+			x[i] = 3*xsx[i] - 2*xsxsx[i]
+		}
+	}
+	tr := 0.0
+	xs := mul(x, n, n, s, n)
+	for i := 0; i < n; i++ {
+		tr += xs[i*n+i]
+	}
+	if math.Abs(tr-float64(len(occ))) > 1e-8 {
+		return d
+	}
+	// Symmetrize against rounding and scale back.
+	out := make([]float64, len(d))
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			out[i*n+j] = 0.5 * w * (x[i*n+j] + x[j*n+i])
+		}
+	}
+	return out
 }
 
 // fockAndEnergy builds the Fock matrices for the densities and returns them
