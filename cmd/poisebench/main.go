@@ -22,6 +22,7 @@ type benchFlags struct {
 	molecules string
 	child     string
 	list      bool
+	profile   string
 }
 
 func newRootCmd() *cobra.Command {
@@ -55,6 +56,7 @@ thread speed-up, aspirin settle). --list prints them all.`,
 	fl.BoolVar(&f.asJSON, "json", false, "print the results as JSON instead of a table")
 	fl.StringVar(&f.molecules, "molecules", "testdata/molecules", "directory of the input molecules (water.xyz, benzene.xyz, aspirin.xyz)")
 	fl.BoolVar(&f.list, "list", false, "list the workloads and their goals, run nothing")
+	fl.StringVar(&f.profile, "cpuprofile", "", "write a CPU profile of each run to FILE (with several runs, FILE-WORKLOAD-RUN; read it with go tool pprof)")
 	fl.StringVar(&f.child, "child", "", "run one workload in this process and print its result as JSON (internal)")
 	_ = fl.MarkHidden("child")
 	return cmd

@@ -10,6 +10,7 @@ import (
 	"os"
 	"os/exec"
 	"runtime/debug"
+	"runtime/pprof"
 	"strconv"
 
 	"github.com/olekukonko/tablewriter"
@@ -27,6 +28,17 @@ func runChild(ctx context.Context, w io.Writer, f *benchFlags) error {
 		return &usageError{fmt.Errorf("--threads %d: give at least 1", f.threads)}
 	}
 	debug.SetMemoryLimit(memoryBudget) // as the CLI does with --memory
+	if f.profile != "" {
+		pf, err := os.Create(f.profile)
+		if err != nil {
+			return &usageError{fmt.Errorf("--cpuprofile: %w", err)}
+		}
+		defer pf.Close()
+		if err := pprof.StartCPUProfile(pf); err != nil {
+			return fmt.Errorf("--cpuprofile: %w", err)
+		}
+		defer pprof.StopCPUProfile()
+	}
 	m, err := wl.run(ctx, env{threads: f.threads, molecules: f.molecules})
 	if err != nil {
 		return fmt.Errorf("%s: %w", wl.name, err)
@@ -82,7 +94,14 @@ func runParent(ctx context.Context, out, errw io.Writer, f *benchFlags) error {
 		var walls, values []float64
 		for r := 0; r < f.repeat; r++ {
 			fmt.Fprintf(errw, "poisebench: %s, run %d of %d\n", w.name, r+1, f.repeat)
-			m, err := runOnce(ctx, exe, w.name, f, errw)
+			prof := ""
+			if f.profile != "" {
+				prof = f.profile
+				if f.repeat > 1 || len(sel) > 1 {
+					prof = fmt.Sprintf("%s-%s-%d", f.profile, w.name, r+1)
+				}
+			}
+			m, err := runOnce(ctx, exe, w.name, f, prof, errw)
 			if err != nil {
 				return err
 			}
@@ -107,8 +126,12 @@ func runParent(ctx context.Context, out, errw io.Writer, f *benchFlags) error {
 
 // runOnce runs one workload in a child process and returns its
 // measurement with the child's peak resident memory.
-func runOnce(ctx context.Context, exe, name string, f *benchFlags, errw io.Writer) (measurement, error) {
-	cmd := exec.CommandContext(ctx, exe, "--child", name, "--threads", strconv.Itoa(f.threads), "--molecules", f.molecules)
+func runOnce(ctx context.Context, exe, name string, f *benchFlags, profile string, errw io.Writer) (measurement, error) {
+	args := []string{"--child", name, "--threads", strconv.Itoa(f.threads), "--molecules", f.molecules}
+	if profile != "" {
+		args = append(args, "--cpuprofile", profile)
+	}
+	cmd := exec.CommandContext(ctx, exe, args...)
 	var stdout bytes.Buffer
 	cmd.Stdout = &stdout
 	cmd.Stderr = errw

@@ -60,8 +60,21 @@
 //
 // vrho and vsigma are libxc's vrho and vsigma; exc is libxc's zk (energy
 // per particle) times the input density. A Functional is immutable and
-// safe for concurrent use; the inner loops allocate nothing and dispatch
-// once per component and batch. Callers parallelize over batches.
+// safe for concurrent use; the inner loops allocate nothing. Callers
+// parallelize over batches.
+//
+// # Evaluation (unpol.go, pol.go)
+//
+// The components of a functional are evaluated together, point by point:
+// the cube roots (ρ^(1/3); for spin densities n, ρα, ρβ, 1±ζ), rs, √rs and
+// f(ζ) are computed once per point and shared by all components instead
+// of each component taking its own math.Cbrt, and each component's
+// contribution is added in the order of the functional's definition. A
+// point below the smallest density threshold of the components costs one
+// comparison. Closed-shell LYP is written out at ζ = 0 (all (1±ζ) powers
+// 1, no ζ derivative) rather than evaluated as the polarized form with
+// ρα = ρβ. The results equal those of separate component passes up to
+// floating-point rounding (relative differences of order 1e-15).
 //
 // # Thresholds (libxc 5.2 defaults, reproduced per component)
 //

@@ -2,6 +2,7 @@ package xc
 
 import (
 	"fmt"
+	"math"
 	"strings"
 )
 
@@ -53,12 +54,24 @@ type Functional struct {
 	terms []term
 	exx   float64
 	gga   bool
+	// needRs reports a component that uses rs and √rs (local correlation).
+	needRs bool
+	// minDens is the smallest density threshold of the components: below
+	// it a point gets zero from all of them. maxDens is the largest: spin
+	// densities at or above it are not changed by any component's clamp.
+	minDens, maxDens float64
 }
 
 func newFunctional(name string, exx float64, terms ...term) *Functional {
-	f := &Functional{name: name, terms: terms, exx: exx}
+	f := &Functional{name: name, terms: terms, exx: exx, minDens: math.Inf(1)}
 	for _, t := range terms {
 		f.gga = f.gga || t.kind.isGGA()
+		switch t.kind {
+		case kVWN, kPW, kPBEC:
+			f.needRs = true
+		}
+		f.minDens = min(f.minDens, t.sc.dens)
+		f.maxDens = max(f.maxDens, t.sc.dens)
 	}
 	return f
 }
@@ -150,36 +163,18 @@ func (f *Functional) EvalUnpolarized(n int, rho, sigma []float64, exc, vrho, vsi
 	need("exc", exc, n)
 	need("vrho", vrho, n)
 	rho, exc, vrho = rho[:n], exc[:n], vrho[:n]
-	clear(exc)
-	clear(vrho)
 	if f.gga {
 		need("sigma", sigma, n)
 		need("vsigma", vsigma, n)
 		sigma, vsigma = sigma[:n], vsigma[:n]
-		clear(vsigma)
-	} else if vsigma != nil {
-		need("vsigma", vsigma, n)
-		clear(vsigma[:n])
-	}
-	for k := range f.terms {
-		t := &f.terms[k]
-		switch t.kind {
-		case kSlater:
-			slaterUnpol(t.coef, t.sc, rho, exc, vrho)
-		case kVWN:
-			vwnUnpol(t.coef, t.sc, &t.vwn, rho, exc, vrho)
-		case kPW:
-			pwUnpol(t.coef, t.sc, &t.pw, rho, exc, vrho)
-		case kB88:
-			ggaXUnpol(t.coef, t.sc, ggaXB88, rho, sigma, exc, vrho, vsigma)
-		case kPBEX:
-			ggaXUnpol(t.coef, t.sc, ggaXPBE, rho, sigma, exc, vrho, vsigma)
-		case kLYP:
-			lypUnpol(t.coef, t.sc, rho, sigma, exc, vrho, vsigma)
-		case kPBEC:
-			pbecUnpol(t.coef, t.sc, &t.pw, rho, sigma, exc, vrho, vsigma)
+	} else {
+		if vsigma != nil {
+			need("vsigma", vsigma, n)
+			clear(vsigma[:n])
 		}
+		sigma, vsigma = nil, nil
 	}
+	f.evalUnpol(rho, sigma, exc, vrho, vsigma)
 }
 
 // EvalPolarized evaluates the functional at n points of a spin-polarized
@@ -197,9 +192,6 @@ func (f *Functional) EvalPolarized(n int, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB 
 	need("vrhoA", vrhoA, n)
 	need("vrhoB", vrhoB, n)
 	rhoA, rhoB, exc, vrhoA, vrhoB = rhoA[:n], rhoB[:n], exc[:n], vrhoA[:n], vrhoB[:n]
-	clear(exc)
-	clear(vrhoA)
-	clear(vrhoB)
 	if f.gga {
 		need("sigmaAA", sigmaAA, n)
 		need("sigmaAB", sigmaAB, n)
@@ -209,38 +201,15 @@ func (f *Functional) EvalPolarized(n int, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB 
 		need("vsigmaBB", vsigmaBB, n)
 		sigmaAA, sigmaAB, sigmaBB = sigmaAA[:n], sigmaAB[:n], sigmaBB[:n]
 		vsigmaAA, vsigmaAB, vsigmaBB = vsigmaAA[:n], vsigmaAB[:n], vsigmaBB[:n]
-		clear(vsigmaAA)
-		clear(vsigmaAB)
-		clear(vsigmaBB)
 	} else {
+		sigmaAA, sigmaAB, sigmaBB = nil, nil, nil
 		for _, v := range [][]float64{vsigmaAA, vsigmaAB, vsigmaBB} {
 			if v != nil {
 				need("vsigma", v, n)
 				clear(v[:n])
 			}
 		}
+		vsigmaAA, vsigmaAB, vsigmaBB = nil, nil, nil
 	}
-	for k := range f.terms {
-		t := &f.terms[k]
-		switch t.kind {
-		case kSlater:
-			slaterPol(t.coef, t.sc, rhoA, rhoB, exc, vrhoA, vrhoB)
-		case kVWN:
-			vwnPol(t.coef, t.sc, &t.vwn, rhoA, rhoB, exc, vrhoA, vrhoB)
-		case kPW:
-			pwPol(t.coef, t.sc, &t.pw, rhoA, rhoB, exc, vrhoA, vrhoB)
-		case kB88:
-			ggaXPol(t.coef, t.sc, ggaXB88, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
-				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
-		case kPBEX:
-			ggaXPol(t.coef, t.sc, ggaXPBE, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
-				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
-		case kLYP:
-			lypPol(t.coef, t.sc, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
-				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
-		case kPBEC:
-			pbecPol(t.coef, t.sc, &t.pw, rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB,
-				exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
-		}
-	}
+	f.evalPol(rhoA, rhoB, sigmaAA, sigmaAB, sigmaBB, exc, vrhoA, vrhoB, vsigmaAA, vsigmaAB, vsigmaBB)
 }

@@ -29,24 +29,39 @@ const (
 	cbrt4 = 1.587401051968199474751705639272308260391
 )
 
-// ggaXKind selects the enhancement factor of a GGA exchange functional.
-type ggaXKind int
-
-const (
-	ggaXB88 ggaXKind = iota
-	ggaXPBE
-)
-
 // b88Enh returns Becke's F(x²) = 1 + (β/xFactorC)x²/(1+6βx sinh⁻¹x) and dF/d(x²).
 func b88Enh(x2 float64) (f, df float64) {
 	x := math.Sqrt(x2)
-	ash := math.Asinh(x)
+	sq := math.Sqrt(1 + x2)
+	ash := asinhPos(x, x2, sq)
 	den := 1 + b88Gamma*b88Beta*x*ash
 	// den − x²·d(den)/d(x²), finite at x = 0.
-	num := 1 + b88Gamma*b88Beta*(x*ash-x2/math.Sqrt(1+x2))/2
-	f = 1 + b88Beta/xFactorC*x2/den
-	df = b88Beta / xFactorC * num / (den * den)
+	num := 1 + b88Gamma*b88Beta*(x*ash-x2/sq)/2
+	iden := 1 / den
+	f = 1 + b88Beta/xFactorC*x2*iden
+	df = b88Beta / xFactorC * num * (iden * iden)
 	return f, df
+}
+
+// asinhPos returns sinh⁻¹x for x ≥ 0 (or NaN) given x2 = x² and
+// sq = √(1+x²), which B88 needs anyway. It follows the range reduction of
+// the standard library's math.Asinh (W. Kahan's formulas) with the shared
+// square root, so it agrees with math.Asinh to an ulp or so.
+func asinhPos(x, x2, sq float64) float64 {
+	const (
+		ln2   = 6.93147180559945286227e-01 // ln 2
+		large = 1 << 28                    // 1 + x² == x² beyond this
+		small = 1.0 / (1 << 28)            // sinh⁻¹x == x below this
+	)
+	switch {
+	case x > large:
+		return math.Log(x) + ln2
+	case x > 2:
+		return math.Log(2*x + 1/(sq+x))
+	case x < small:
+		return x
+	}
+	return math.Log1p(x + x2/(1+sq))
 }
 
 // pbeXEnh returns F(s) = 1 + κ − κ/(1 + μs²/κ), s² = x2s²x², and dF/d(x²).
@@ -56,74 +71,4 @@ func pbeXEnh(x2 float64) (f, df float64) {
 	f = 1 + pbeKappa - pbeKappa*pbeKappa/d
 	df = x2s * x2s * pbeMu * pbeKappa * pbeKappa / (d * d)
 	return f, df
-}
-
-func ggaXEnh(kind ggaXKind, x2 float64) (f, df float64) {
-	if kind == ggaXB88 {
-		return b88Enh(x2)
-	}
-	return pbeXEnh(x2)
-}
-
-// ggaXUnpol adds c × GGA exchange for unpolarized densities.
-func ggaXUnpol(c float64, sc screen, kind ggaXKind, rho, sigma, exc, vrho, vsigma []float64) {
-	for i, r := range rho {
-		if r/2 <= sc.dens { // libxc screens the spin channel ρ/2
-			continue
-		}
-		s := max(sc.sigma2, sigma[i])
-		r13 := math.Cbrt(r)
-		r43 := r * r13
-		r83 := r43 * r43
-		x2 := cbrt4 * s / r83
-		f, df := ggaXEnh(kind, x2)
-		e := 2 * slaterSpin * r43 // = −Cx ρ^(4/3)
-		exc[i] += c * e * f
-		vrho[i] += c * (4.0 / 3.0 * e / r * (f - 2*x2*df))
-		vsigma[i] += c * e * df * cbrt4 / r83
-	}
-}
-
-// ggaXPol adds c × GGA exchange for spin-polarized densities.
-func ggaXPol(c float64, sc screen, kind ggaXKind, rhoA, rhoB, sAA, sAB, sBB,
-	exc, va, vb, vsAA, vsAB, vsBB []float64) {
-	for i := range rhoA {
-		ra, rb, ok := sc.clampPol(rhoA[i], rhoB[i])
-		if !ok {
-			continue
-		}
-		saa, _, sbb := sc.clampSigmaPol(sAA[i], sAB[i], sBB[i])
-		sp, frozen := ggaExchangeSpin(ra, rb)
-		n := sp.n
-		n13 := math.Cbrt(n)
-		var e, da, db, dsa, dsb float64
-		if ra > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, sp.opz, sp.omz, sp.loA, frozen)
-			ra13 := math.Cbrt(ra)
-			ra83 := ra13 * ra13 * ra * ra
-			x2 := saa / ra83
-			f, df := ggaXEnh(kind, x2)
-			e += slaterSpin * p * f
-			da += slaterSpin * (dOwn*f - p*df*8.0/3.0*x2/ra)
-			db += slaterSpin * dOther * f
-			dsa += slaterSpin * p * df / ra83
-		}
-		if rb > sc.dens {
-			p, dOwn, dOther := spinScale(n, n13, sp.omz, sp.opz, sp.loB, frozen)
-			rb13 := math.Cbrt(rb)
-			rb83 := rb13 * rb13 * rb * rb
-			x2 := sbb / rb83
-			f, df := ggaXEnh(kind, x2)
-			e += slaterSpin * p * f
-			db += slaterSpin * (dOwn*f - p*df*8.0/3.0*x2/rb)
-			da += slaterSpin * dOther * f
-			dsb += slaterSpin * p * df / rb83
-		}
-		exc[i] += c * rawScale(rhoA[i]+rhoB[i], n) * e
-		va[i] += c * da
-		vb[i] += c * db
-		vsAA[i] += c * dsa
-		vsBB[i] += c * dsb
-		_ = vsAB // exchange does not depend on σαβ
-	}
 }

@@ -18,27 +18,15 @@ const (
 // P. A. M. Dirac, Proc. Camb. Phil. Soc. 26, 376 (1930); J. C. Slater,
 // Phys. Rev. 81, 385 (1951). Spin scaling: E_x[ρα,ρβ] = (E_x[2ρα]+E_x[2ρβ])/2.
 
-// slaterUnpol adds c × Slater exchange for unpolarized densities.
-func slaterUnpol(c float64, sc screen, rho, exc, vrho []float64) {
-	for i, r := range rho {
-		// libxc: the spin channel ρ/2 is screened (this also covers ρ < thr).
-		if r/2 <= sc.dens {
-			continue
-		}
-		r13 := math.Cbrt(r)
-		exc[i] += c * (-slaterCx * r * r13)
-		vrho[i] += c * (-4.0 / 3.0 * slaterCx * r13)
-	}
-}
-
 // spinScale returns P = n^(4/3)·h(1+ζσ) for one spin channel σ of GGA
 // exchange, with h the thresholded (1+ζσ)^(4/3), and its derivatives with
 // respect to the channel's own density and the other one. opz = 1+ζσ,
 // omz = 1−ζσ, lo reports 1+ζσ at the zeta threshold. When frozen (ζ held
-// at ±(1−zetaThreshold), see ggaExchangeSpin) ζ does not depend on the
+// at ±(1−zetaThreshold), see ggaXPolPoint) ζ does not depend on the
 // densities and P depends on n only.
-func spinScale(n, n13, opz, omz float64, lo, frozen bool) (p, dOwn, dOther float64) {
-	h, dh := pow43(opz, lo)
+// c is opz^(1/3).
+func spinScale(n, n13, opz, c, omz float64, lo, frozen bool) (p, dOwn, dOther float64) {
+	h, dh := pow43(opz, c, lo)
 	p = n * n13 * h
 	if frozen || lo {
 		d := 4.0 / 3.0 * n13 * h
@@ -49,67 +37,25 @@ func spinScale(n, n13, opz, omz float64, lo, frozen bool) (p, dOwn, dOther float
 	return p, n13 * (4.0/3.0*h + dh*omz), 0
 }
 
-// ggaExchangeSpin returns n, 1+ζ, 1−ζ and the threshold flags for
-// spin-scaled GGA exchange. As libxc 5.2 does in its GGA exchange (not in
-// Slater exchange), ζ itself is held at ∓(1−zetaThreshold) when 1±ζ is at
-// the zeta threshold (frozen true), so that it no longer depends on the
-// densities.
-func ggaExchangeSpin(ra, rb float64) (sp spin, frozen bool) {
-	sp = spinVars(ra, rb)
-	switch {
-	case sp.loA:
-		sp.opz, sp.omz = zetaThreshold, 1+(1-zetaThreshold)
-		return sp, true
-	case sp.loB:
-		sp.opz, sp.omz = 1+(1-zetaThreshold), zetaThreshold
-		return sp, true
-	}
-	return sp, false
-}
-
 // slaterChannel returns one spin channel's Slater exchange energy density
 // and its derivatives with respect to the own and other spin density. In
 // libxc's Slater exchange the channel depends on ρσ alone,
 // −(3/4)(6/π)^(1/3)ρσ^(4/3), except below the zeta threshold where
 // (1+ζσ)^(4/3) is held at zetaThreshold^(4/3): then n^(4/3)·zetaThr43.
-func slaterChannel(rho, n float64, lo bool) (e, dOwn, dOther float64) {
+// rho13 and n13 are the cube roots of rho and n.
+func slaterChannel(rho, rho13, n, n13 float64, lo bool) (e, dOwn, dOther float64) {
 	if lo {
-		n13 := math.Cbrt(n)
 		e = slaterSpin * n * n13 * zetaThr43
 		d := 4.0 / 3.0 * slaterSpin * n13 * zetaThr43
 		return e, d, d
 	}
 	r2 := 2 * rho
-	c := math.Cbrt(r2)
+	c := cbrt2 * rho13 // (2ρσ)^(1/3)
 	return slaterSpin * r2 * c, 8.0 / 3.0 * slaterSpin * c, 0
 }
 
-// slaterPol adds c × Slater exchange for spin-polarized densities.
-func slaterPol(c float64, sc screen, rhoA, rhoB, exc, va, vb []float64) {
-	for i := range rhoA {
-		ra, rb, ok := sc.clampPol(rhoA[i], rhoB[i])
-		if !ok {
-			continue
-		}
-		sp := spinVars(ra, rb)
-		var e, da, db float64
-		if ra > sc.dens {
-			ea, dOwn, dOther := slaterChannel(ra, sp.n, sp.loA)
-			e += ea
-			da += dOwn
-			db += dOther
-		}
-		if rb > sc.dens {
-			eb, dOwn, dOther := slaterChannel(rb, sp.n, sp.loB)
-			e += eb
-			db += dOwn
-			da += dOther
-		}
-		exc[i] += c * rawScale(rhoA[i]+rhoB[i], sp.n) * e
-		va[i] += c * da
-		vb[i] += c * db
-	}
-}
+// cbrt2 is 2^(1/3).
+const cbrt2 = 1.259921049894873164767210607278228350570
 
 // rawScale is nRaw/n: outputs e = nRaw·ε where ε is evaluated at the
 // clamped density n, matching what one gets from libxc's energy per
@@ -184,20 +130,14 @@ func pwModified() pwSet {
 	return s
 }
 
-// epsUnpol returns ε_c(rs, 0) and its rs derivative.
-func (s *pwSet) epsUnpol(rs float64) (eps, dRs float64) {
-	return s.para.eval(rs, math.Sqrt(rs))
-}
-
 // epsPol returns ε_c(rs, ζ) = ε_P + ζ⁴f(ζ)[ε_F − ε_P + (−α_c)/f”(0)]
 // − f(ζ)(−α_c)/f”(0) (PW92 eq. (8)) and its partial derivatives.
-func (s *pwSet) epsPol(rs float64, sp *spin) (eps, dRs, dZ float64) {
+// srs is √rs, and fz, dfzz are f(ζ) and f'(ζ) (fZeta).
+func (s *pwSet) epsPol(rs, srs float64, sp *spin, fz, dfzz float64) (eps, dRs, dZ float64) {
 	zeta := sp.zeta
-	srs := math.Sqrt(rs)
 	p, dp := s.para.eval(rs, srs)
 	f, dfz := s.ferro.eval(rs, srs)
 	a, da := s.malpha.eval(rs, srs)
-	fz, dfzz := fZeta(sp)
 	z3 := zeta * zeta * zeta
 	z4 := z3 * zeta
 	bracket := f - p + a/s.fz20
@@ -206,36 +146,6 @@ func (s *pwSet) epsPol(rs float64, sp *spin) (eps, dRs, dZ float64) {
 	dRs = dp + z4*fz*dBracket - fz*da/s.fz20
 	dZ = (4*z3*fz+z4*dfzz)*bracket - dfzz*a/s.fz20
 	return eps, dRs, dZ
-}
-
-// pwUnpol adds c × PW92 correlation for unpolarized densities.
-func pwUnpol(c float64, sc screen, s *pwSet, rho, exc, vrho []float64) {
-	for i, r := range rho {
-		if r < sc.dens {
-			continue
-		}
-		rs := rsFactor / math.Cbrt(r)
-		eps, dRs := s.epsUnpol(rs)
-		exc[i] += c * r * eps
-		vrho[i] += c * (eps - rs/3*dRs)
-	}
-}
-
-// pwPol adds c × PW92 correlation for spin-polarized densities.
-func pwPol(c float64, sc screen, s *pwSet, rhoA, rhoB, exc, va, vb []float64) {
-	for i := range rhoA {
-		ra, rb, ok := sc.clampPol(rhoA[i], rhoB[i])
-		if !ok {
-			continue
-		}
-		sp := spinVars(ra, rb)
-		rs := rsFactor / math.Cbrt(sp.n)
-		eps, dRs, dZ := s.epsPol(rs, &sp)
-		da, db := ldaCorrPot(rs, sp.opz, sp.omz, eps, dRs, dZ)
-		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
-		va[i] += c * da
-		vb[i] += c * db
-	}
 }
 
 // ---------------------------------------------------------------------------
@@ -253,12 +163,14 @@ type vwnFit struct {
 	a, b, c, x0 float64
 	q           float64 // √(4c − b²)
 	bx0X0       float64 // b x0 / X(x0)
+	c1, c2      float64 // 2b/Q and 2(b+2x0)/Q
 }
 
 func newVWNFit(a, b, c, x0 float64) vwnFit {
-	return vwnFit{a: a, b: b, c: c, x0: x0,
-		q:     math.Sqrt(4*c - b*b),
-		bx0X0: b * x0 / (x0*x0 + b*x0 + c)}
+	q := math.Sqrt(4*c - b*b)
+	return vwnFit{a: a, b: b, c: c, x0: x0, q: q,
+		bx0X0: b * x0 / (x0*x0 + b*x0 + c),
+		c1:    2 * b / q, c2: 2 * (b + 2*x0) / q}
 }
 
 // eval returns F(x) = A{ln(x²/X) + (2b/Q) atan(Q/(2x+b))
@@ -268,9 +180,10 @@ func (v *vwnFit) eval(rs, x float64) (val, d float64) {
 	xx := rs + v.b*x + v.c
 	at := math.Atan(v.q / (2*x + v.b))
 	xmx0 := x - v.x0
-	val = v.a * (math.Log(rs/xx) + 2*v.b/v.q*at -
-		v.bx0X0*(math.Log(xmx0*xmx0/xx)+2*(v.b+2*v.x0)/v.q*at))
-	// d atan(Q/(2x+b))/dx = −Q/(2X)
+	val = v.a * (math.Log(rs/xx) + v.c1*at -
+		v.bx0X0*(math.Log(xmx0*xmx0/xx)+v.c2*at))
+	// d atan(Q/(2x+b))/dx = −Q/(2X). The divisions are kept apart: at
+	// large rs the bracket cancels to O(1/x³).
 	dx := v.a * (2/x - (2*x+v.b)/xx - v.b/xx -
 		v.bx0X0*(2/xmx0-(2*x+v.b)/xx-(v.b+2*v.x0)/xx))
 	return val, dx / (2 * x)
@@ -305,13 +218,12 @@ func vwnRPA() vwnSet {
 	}
 }
 
-// epsPol returns ε_c(rs, ζ) and its partial derivatives.
-func (s *vwnSet) epsPol(rs float64, sp *spin) (eps, dRs, dZ float64) {
+// epsPol returns ε_c(rs, ζ) and its partial derivatives, given x = √rs
+// and fz, dfz = f(ζ), f'(ζ) (fZeta).
+func (s *vwnSet) epsPol(rs, x float64, sp *spin, fz, dfz float64) (eps, dRs, dZ float64) {
 	zeta := sp.zeta
-	x := math.Sqrt(rs)
 	p, dp := s.para.eval(rs, x)
 	f, df := s.ferro.eval(rs, x)
-	fz, dfz := fZeta(sp)
 	if !s.stiffness {
 		return p + fz*(f-p), dp + fz*(df-dp), dfz * (f - p)
 	}
@@ -322,34 +234,4 @@ func (s *vwnSet) epsPol(rs float64, sp *spin) (eps, dRs, dZ float64) {
 	dRs = dp + da*fz*(1-z4)/vwnFpp + (df-dp)*fz*z4
 	dZ = a*(dfz*(1-z4)-4*z3*fz)/vwnFpp + (f-p)*(dfz*z4+4*z3*fz)
 	return eps, dRs, dZ
-}
-
-// vwnUnpol adds c × VWN correlation for unpolarized densities.
-func vwnUnpol(c float64, sc screen, s *vwnSet, rho, exc, vrho []float64) {
-	for i, r := range rho {
-		if r < sc.dens {
-			continue
-		}
-		rs := rsFactor / math.Cbrt(r)
-		eps, dRs := s.para.eval(rs, math.Sqrt(rs))
-		exc[i] += c * r * eps
-		vrho[i] += c * (eps - rs/3*dRs)
-	}
-}
-
-// vwnPol adds c × VWN correlation for spin-polarized densities.
-func vwnPol(c float64, sc screen, s *vwnSet, rhoA, rhoB, exc, va, vb []float64) {
-	for i := range rhoA {
-		ra, rb, ok := sc.clampPol(rhoA[i], rhoB[i])
-		if !ok {
-			continue
-		}
-		sp := spinVars(ra, rb)
-		rs := rsFactor / math.Cbrt(sp.n)
-		eps, dRs, dZ := s.epsPol(rs, &sp)
-		da, db := ldaCorrPot(rs, sp.opz, sp.omz, eps, dRs, dZ)
-		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
-		va[i] += c * da
-		vb[i] += c * db
-	}
 }

@@ -43,13 +43,13 @@ const (
 )
 
 // lypPowers returns the thresholded (1+z)^(8/3), (1+z)^(11/3), (1+z)² for
-// opz = 1+z and their derivatives with respect to z (sign s = ±1 for 1±ζ).
-func lypPowers(opz, s float64) (p8, p11, p2, d8, d11, d2 float64) {
+// opz = 1+z, c = opz^(1/3) and their derivatives with respect to z (sign
+// s = ±1 for 1±ζ).
+func lypPowers(opz, c, s float64) (p8, p11, p2, d8, d11, d2 float64) {
 	if corrLo(opz) {
 		z83 := zetaThr23 * zetaThreshold * zetaThreshold
 		return z83, z83 * zetaThreshold, zetaThreshold * zetaThreshold, 0, 0, 0
 	}
-	c := math.Cbrt(opz)
 	p2 = opz * opz
 	p8 = c * c * p2
 	p11 = p8 * opz
@@ -57,14 +57,15 @@ func lypPowers(opz, s float64) (p8, p11, p2, d8, d11, d2 float64) {
 }
 
 // lypPoint evaluates the LYP energy per volume and its derivatives for
-// spin densities ra, rb and gradient invariants saa, sab, sbb.
-func lypPoint(ra, rb, saa, sab, sbb float64) (e, va, vb, vsaa, vsab, vsbb float64) {
-	sp := spinVars(ra, rb)
+// the spin densities of p and gradient invariants saa, sab, sbb.
+func lypPoint(p *polPoint, saa, sab, sbb float64) (e, va, vb, vsaa, vsab, vsbb float64) {
+	sp := &p.sp
+	ra, rb := p.ra, p.rb
 	n, z, opz, omz := sp.n, sp.zeta, sp.opz, sp.omz
-	n13 := math.Cbrt(n)
+	n13 := p.n13
 	r := 1 / n13
 	n83 := n * n * n13 * n13
-	ra13, rb13 := math.Cbrt(ra), math.Cbrt(rb)
+	ra13, rb13 := p.ra13, p.rb13
 	ra83 := ra * ra * ra13 * ra13
 	rb83 := rb * rb * rb13 * rb13
 	xt := (saa + 2*sab + sbb) / n83
@@ -79,8 +80,8 @@ func lypPoint(ra, rb, saa, sab, sbb float64) (e, va, vb, vsaa, vsab, vsbb float6
 
 	q := 1 - z*z
 	dq := -2 * z
-	pa8, pa11, pa2, pa8z, pa11z, pa2z := lypPowers(opz, 1)
-	pb8, pb11, pb2, pb8z, pb11z, pb2z := lypPowers(omz, -1)
+	pa8, pa11, pa2, pa8z, pa11z, pa2z := lypPowers(opz, p.opz13, 1)
+	pb8, pb11, pb2, pb8z, pb11z, pb2z := lypPowers(omz, p.omz13, -1)
 
 	t1 := -q / dd
 	c47 := (47 - 7*delta) / 72
@@ -123,38 +124,4 @@ func lypPoint(ra, rb, saa, sab, sbb float64) (e, va, vb, vsaa, vsab, vsbb float6
 	vsab = 2 * n * epsXt / n83
 	vsbb = n * (epsXt/n83 + epsX1/rb83)
 	return e, va, vb, vsaa, vsab, vsbb
-}
-
-// lypUnpol adds c × LYP correlation for unpolarized densities.
-func lypUnpol(c float64, sc screen, rho, sigma, exc, vrho, vsigma []float64) {
-	for i, r := range rho {
-		if r < sc.dens {
-			continue
-		}
-		s := max(sc.sigma2, sigma[i]) / 4
-		h := r / 2
-		e, va, vb, vsaa, vsab, vsbb := lypPoint(h, h, s, s, s)
-		exc[i] += c * e
-		vrho[i] += c * (va + vb) / 2
-		vsigma[i] += c * (vsaa + vsab + vsbb) / 4
-	}
-}
-
-// lypPol adds c × LYP correlation for spin-polarized densities.
-func lypPol(c float64, sc screen, rhoA, rhoB, sAA, sAB, sBB,
-	exc, va, vb, vsAA, vsAB, vsBB []float64) {
-	for i := range rhoA {
-		ra, rb, ok := sc.clampPol(rhoA[i], rhoB[i])
-		if !ok {
-			continue
-		}
-		saa, sab, sbb := sc.clampSigmaPol(sAA[i], sAB[i], sBB[i])
-		e, da, db, dsaa, dsab, dsbb := lypPoint(ra, rb, saa, sab, sbb)
-		exc[i] += c * rawScale(rhoA[i]+rhoB[i], ra+rb) * e
-		va[i] += c * da
-		vb[i] += c * db
-		vsAA[i] += c * dsaa
-		vsAB[i] += c * dsab
-		vsBB[i] += c * dsbb
-	}
 }

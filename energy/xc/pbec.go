@@ -19,23 +19,30 @@ const (
 )
 
 // pbecPoint returns the PBE correlation energy per particle and its partial
-// derivatives with respect to n, ζ and σ = |∇ρ|², given n, ζ, 1±ζ and σ.
-// polarized false means ζ = 0 and skips the spin terms.
-func pbecPoint(pw *pwSet, sp *spin, sigma float64, polarized bool) (eps, dn, dz, ds float64) {
-	n := sp.n
-	n13 := math.Cbrt(n)
-	rs := rsFactor / n13
-	var ec, ecRs, ecZ, phi, dphi float64
-	if polarized {
-		ec, ecRs, ecZ = pw.epsPol(rs, sp)
-		ha, dha := pow23(sp.opz, corrLo(sp.opz))
-		hb, dhb := pow23(sp.omz, corrLo(sp.omz))
-		phi = (ha + hb) / 2
-		dphi = (dha - dhb) / 2
-	} else {
-		ec, ecRs = pw.epsUnpol(rs)
-		phi = 1
-	}
+// derivatives with respect to n, ζ and σ = |∇ρ|², given n, ζ, 1±ζ and σ,
+// for the spin-polarized point p.
+func pbecPoint(pw *pwSet, p *polPoint, sigma float64) (eps, dn, dz, ds float64) {
+	sp := &p.sp
+	ec, ecRs, ecZ := pw.epsPol(p.rs, p.srs, sp, p.fz, p.dfz)
+	ha, dha := pow23(p.opz13, corrLo(sp.opz))
+	hb, dhb := pow23(p.omz13, corrLo(sp.omz))
+	phi := (ha + hb) / 2
+	dphi := (dha - dhb) / 2
+	return pbecH(sp.n, p.n13, p.rs, ec, ecRs, ecZ, phi, dphi, sigma, true)
+}
+
+// pbecUnpolEps is pbecPoint at ζ = 0 (φ = 1) given n^(1/3), rs and √rs:
+// ε and its derivatives with respect to n and σ.
+func pbecUnpolEps(pw *pwSet, n, n13, rs, srs, sigma float64) (eps, dn, ds float64) {
+	ec, ecRs := pw.para.eval(rs, srs)
+	eps, dn, _, ds = pbecH(n, n13, rs, ec, ecRs, 0, 1, 0, sigma, false)
+	return eps, dn, ds
+}
+
+// pbecH adds the gradient correction H to the local correlation ε_c(rs, ζ)
+// (ec, with derivatives ecRs and ecZ) given φ and dφ/dζ, and returns ε and
+// its partial derivatives with respect to n, ζ (when polarized) and σ.
+func pbecH(n, n13, rs, ec, ecRs, ecZ, phi, dphi, sigma float64, polarized bool) (eps, dn, dz, ds float64) {
 	phi2 := phi * phi
 	g := pbeGamma * phi2 * phi
 	dg := 3 * pbeGamma * phi2 * dphi
@@ -50,11 +57,11 @@ func pbecPoint(pw *pwSet, sp *spin, sigma float64, polarized bool) (eps, dn, dz,
 	f1 := y + a*y*y
 	den := 1 + a*f1
 	l := 1 + bg*f1/den
-	h := g * math.Log(l)
+	hG := math.Log(l) // ∂H/∂g
+	h := g * hG
 	pre := g * bg / (l * den * den)
 	hY := pre * (1 + 2*a*y)
 	hA := pre * (y*y - f1*f1)
-	hG := math.Log(l)
 
 	eps = ec + h
 	ecN := -rs / (3 * n) * ecRs
@@ -64,41 +71,4 @@ func pbecPoint(pw *pwSet, sp *spin, sigma float64, polarized bool) (eps, dn, dz,
 	}
 	ds = hY * ySigma
 	return eps, dn, dz, ds
-}
-
-// pbecUnpol adds c × PBE correlation for unpolarized densities.
-func pbecUnpol(c float64, sc screen, pw *pwSet, rho, sigma, exc, vrho, vsigma []float64) {
-	for i, r := range rho {
-		if r < sc.dens {
-			continue
-		}
-		s := max(sc.sigma2, sigma[i])
-		sp := spin{n: r, opz: 1, omz: 1}
-		eps, dn, _, ds := pbecPoint(pw, &sp, s, false)
-		exc[i] += c * r * eps
-		vrho[i] += c * (eps + r*dn)
-		vsigma[i] += c * r * ds
-	}
-}
-
-// pbecPol adds c × PBE correlation for spin-polarized densities.
-func pbecPol(c float64, sc screen, pw *pwSet, rhoA, rhoB, sAA, sAB, sBB,
-	exc, va, vb, vsAA, vsAB, vsBB []float64) {
-	for i := range rhoA {
-		ra, rb, ok := sc.clampPol(rhoA[i], rhoB[i])
-		if !ok {
-			continue
-		}
-		saa, sab, sbb := sc.clampSigmaPol(sAA[i], sAB[i], sBB[i])
-		sp := spinVars(ra, rb)
-		n, opz, omz := sp.n, sp.opz, sp.omz
-		eps, dn, dz, ds := pbecPoint(pw, &sp, saa+2*sab+sbb, true)
-		common := eps + n*dn
-		exc[i] += c * (rhoA[i] + rhoB[i]) * eps
-		va[i] += c * (common + omz*dz)
-		vb[i] += c * (common - opz*dz)
-		vsAA[i] += c * n * ds
-		vsAB[i] += c * 2 * n * ds
-		vsBB[i] += c * n * ds
-	}
 }

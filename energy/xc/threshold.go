@@ -81,22 +81,20 @@ func spinVars(ra, rb float64) spin {
 // the computed 1±ζ at or below zetaThreshold.
 func corrLo(opz float64) bool { return opz <= zetaThreshold }
 
-// pow43 returns h = (1+z)^(4/3) given opz = 1+z, held at
-// zetaThreshold^(4/3) when lo (1+z at the zeta threshold), and dh/dopz.
-func pow43(opz float64, lo bool) (h, dh float64) {
+// pow43 returns h = (1+z)^(4/3) given opz = 1+z and c = opz^(1/3), held
+// at zetaThreshold^(4/3) when lo (1+z at the zeta threshold), and dh/dopz.
+func pow43(opz, c float64, lo bool) (h, dh float64) {
 	if lo {
 		return zetaThr43, 0
 	}
-	c := math.Cbrt(opz)
 	return c * opz, 4.0 / 3.0 * c
 }
 
 // pow23 is pow43 for the exponent 2/3.
-func pow23(opz float64, lo bool) (h, dh float64) {
+func pow23(c float64, lo bool) (h, dh float64) {
 	if lo {
 		return zetaThr23, 0
 	}
-	c := math.Cbrt(opz)
 	return c * c, 2.0 / 3.0 / c
 }
 
@@ -109,10 +107,11 @@ const (
 
 // fZeta is the spin-interpolation function
 // f(ζ) = [(1+ζ)^(4/3) + (1−ζ)^(4/3) − 2]/(2^(4/3) − 2)
-// with thresholded powers, and df/dζ.
-func fZeta(s *spin) (f, df float64) {
-	a, da := pow43(s.opz, corrLo(s.opz))
-	b, db := pow43(s.omz, corrLo(s.omz))
+// with thresholded powers, and df/dζ, given ca = (1+ζ)^(1/3) and
+// cb = (1−ζ)^(1/3).
+func fZeta(s *spin, ca, cb float64) (f, df float64) {
+	a, da := pow43(s.opz, ca, corrLo(s.opz))
+	b, db := pow43(s.omz, cb, corrLo(s.omz))
 	return (a + b - 2) / fZetaDen, (da - db) / fZetaDen
 }
 
