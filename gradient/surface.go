@@ -178,6 +178,24 @@ func (s *SCFSurface) Evaluations() int { return int(s.evals.Load()) }
 // Frame is the orientation of the DFT grids, fixed for the surface's life.
 func (s *SCFSurface) Frame() grid.Frame { return s.frame }
 
+// StartXC returns the exchange–correlation evaluator of the first
+// iterations of a cold-start SCF (scf.Options.XCStart): the functional on
+// grid level 1 in the same frame, a fifth of the points of the default
+// level. It returns nil (no coarse start) when the level asked for is 2 or
+// coarser. Its stored basis-function values get a quarter of cacheBytes.
+func StartXC(fn *xc.Functional, z []int, pos [][3]float64, level int, frame grid.Frame, b *integral.Basis, threads int, cacheBytes int64) (scf.XC, error) {
+	if level < 3 || fn == nil || !fn.NeedsGrid() {
+		return nil, nil
+	}
+	g, err := grid.New(z, pos, 1, frame, threads)
+	if err != nil {
+		return nil, err
+	}
+	pot := dft.New(fn, g, b, threads)
+	pot.CacheBytes = cacheBytes / 4
+	return pot, nil
+}
+
 // AxisSymmetric is implemented by surfaces that can tell whether they are
 // exactly invariant (not only to within their numerical noise) under the
 // symmetry operations of a molecule that permute the coordinate axes with
@@ -369,7 +387,7 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		opts.MemoryBytes = opts.MemoryBytes * int64(threads) / int64(s.threads)
 	}
 	opts.Guess = guess
-	opts.XC = nil
+	opts.XC, opts.XCStart = nil, nil
 	var pot *dft.Potential
 	if fn := s.cfg.Method; fn != nil && fn.NeedsGrid() {
 		z, pos := atomsOf(m)
@@ -377,9 +395,15 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		if err != nil {
 			return nil, err
 		}
-		pot = dft.New(fn, g, integral.NewBasis(shells), threads)
+		ib := integral.NewBasis(shells)
+		pot = dft.New(fn, g, ib, threads)
 		pot.CacheBytes = dft.CacheBytesFor(opts.MemoryBytes)
 		opts.XC = pot
+		if guess == nil {
+			if opts.XCStart, err = StartXC(fn, z, pos, s.cfg.GridLevel, s.frame, ib, threads, pot.CacheBytes); err != nil {
+				return nil, err
+			}
+		}
 	}
 	res, err := scf.Run(ctx, m, shells, opts)
 	if res != nil && ctx.Err() == nil {

@@ -342,7 +342,7 @@ func (r *runner) surface(l Level, tight bool) (gradient.Surface, error) {
 		return r.opts.NewSurface(r.mol, l)
 	}
 	o := l.SCF
-	o.XC, o.Guess, o.Progress = nil, nil, nil
+	o.XC, o.XCStart, o.Guess, o.Progress = nil, nil, nil, nil
 	return gradient.NewSCFSurface(r.mol, gradient.Config{Basis: l.Basis, Convention: l.Convention, Method: l.Method,
 		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion})
 }

@@ -110,7 +110,7 @@ func newGradientCmd() *cobra.Command {
 // of the SCF already run, if any, so that every later geometry uses it.
 func (s *setup) surfaceConfig(numeric bool, step float64) gradient.Config {
 	opts := s.opts
-	opts.XC = nil
+	opts.XC, opts.XCStart = nil, nil
 	opts.Guess = nil
 	opts.Progress = nil
 	cfg := gradient.Config{

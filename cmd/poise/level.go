@@ -22,6 +22,7 @@ import (
 	"poise/energy/molecule"
 	"poise/energy/scf"
 	"poise/energy/xc"
+	"poise/gradient"
 	"poise/settle"
 )
 
@@ -227,7 +228,7 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 // SCF options. Hartree–Fock needs nothing.
 func (s *setup) attachXC(frame *grid.Frame) error {
 	if !s.fn.NeedsGrid() {
-		s.opts.XC = nil
+		s.opts.XC, s.opts.XCStart = nil, nil
 		return nil
 	}
 	z := make([]int, len(s.mol.Atoms))
@@ -249,9 +250,13 @@ func (s *setup) attachXC(frame *grid.Frame) error {
 		return err
 	}
 	s.grid = g
-	pot := dft.New(s.fn, g, integral.NewBasis(s.shells), s.opts.Threads)
+	ib := integral.NewBasis(s.shells)
+	pot := dft.New(s.fn, g, ib, s.opts.Threads)
 	pot.CacheBytes = dft.CacheBytesFor(s.memBytes)
 	s.opts.XC = pot
+	if s.opts.XCStart, err = gradient.StartXC(s.fn, z, pos, s.gridLevel, fr, ib, s.opts.Threads, pot.CacheBytes); err != nil {
+		return err
+	}
 	return nil
 }
 

@@ -157,7 +157,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 	}
 
 	opts := s.opts
-	opts.XC = nil
+	opts.XC, opts.XCStart = nil, nil
 	progress := !f.asJSON && isTerminal(os.Stderr)
 	if progress {
 		opts.Progress = func(it scf.Iteration) {

@@ -102,7 +102,7 @@ reuses them without any SCF.`,
 // settleLevel is the settle.Level of a prepared setup.
 func settleLevel(s *setup) settle.Level {
 	o := s.opts
-	o.XC, o.Progress = nil, nil
+	o.XC, o.XCStart, o.Progress = nil, nil, nil
 	return settle.Level{Basis: s.set, Convention: s.conv, Method: s.fn, GridLevel: s.gridLevel, Dispersion: s.dispersion, SCF: o}
 }
 

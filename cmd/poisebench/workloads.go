@@ -215,7 +215,7 @@ func (c countingSurface) Evaluate(ctx context.Context, x []float64, req gradient
 // newSurface is the SCF surface of mol at lvl, as settle builds it.
 func newSurface(mol *molecule.Molecule, l settle.Level, iters *atomic.Int64) (gradient.Surface, error) {
 	o := l.SCF
-	o.XC, o.Guess, o.Progress = nil, nil, nil
+	o.XC, o.XCStart, o.Guess, o.Progress = nil, nil, nil, nil
 	s, err := gradient.NewSCFSurface(mol, gradient.Config{Basis: l.Basis, Convention: l.Convention, Method: l.Method,
 		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion})
 	if err != nil {
