@@ -56,7 +56,7 @@ type Options struct {
 	// CoarseSwitchGradient, and then converges with XC; the result is
 	// that of XC alone. Warm starts never use it.
 	XCStart XC
-	Guess             *State  // warm start from an earlier density (same basis)
+	Guess   *State // warm start from an earlier density (same basis)
 	// Progress, if set, is called after every iteration.
 	Progress func(Iteration)
 	// StartGuess chooses the starting density when Guess is nil (default
