@@ -50,13 +50,13 @@ type Options struct {
 	Threads           int     // default: all cores
 	MemoryBytes       int64   // budget for in-core integrals; 0: 1 GiB
 	XC                XC      // nil for Hartree–Fock
+	Guess             *State  // warm start from an earlier density (same basis)
 	// XCStart, if set, evaluates the same functional more cheaply (on a
 	// coarser grid). A cold start (no Guess) uses it for its first
 	// iterations, until the orbital gradient falls below
 	// CoarseSwitchGradient, and then converges with XC; the result is
 	// that of XC alone. Warm starts never use it.
 	XCStart XC
-	Guess   *State // warm start from an earlier density (same basis)
 	// Progress, if set, is called after every iteration.
 	Progress func(Iteration)
 	// StartGuess chooses the starting density when Guess is nil (default
