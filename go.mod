@@ -6,8 +6,8 @@ require (
 	github.com/olekukonko/tablewriter v1.1.5
 	github.com/spf13/cobra v1.10.2
 	github.com/spf13/pflag v1.0.9
-	gonum.org/v1/gonum v0.17.0
 	golang.org/x/sys v0.35.0
+	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0
 )
 
