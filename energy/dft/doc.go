@@ -13,8 +13,8 @@
 // batch's bounding sphere are skipped, the rest are evaluated into dense
 // function×point blocks, functions below 1e-11 (value and first
 // derivatives) on every point of the batch are dropped, and densities and
-// potential blocks are formed with matrix–matrix products (a register-tiled
-// kernel, kernel.go). Batches are processed in fixed groups and their
+// potential blocks are formed with matrix–matrix products (register-tiled
+// kernels, see below). Batches are processed in fixed groups and their
 // contributions added in batch order, so the result does not depend on the
 // thread count.
 //
@@ -38,5 +38,32 @@
 //     2·m² operations per point for m functions and rank r; a matrix that
 //     is not positive semidefinite, or a batch with 2r ≥ m, uses D itself.
 //   - Primitive Gaussians whose term is below 1e-20 at a point are not
-//     evaluated (no exponential).
+//     evaluated (no exponential), in the build and in the gradient.
+//   - Shells whose functions are single scaled Cartesian components (s, p,
+//     Cartesian d) are evaluated function row by function row over the
+//     points; other shells point by point through their transform.
+//   - The stored function values live in one allocation, evaluated there
+//     in place; on Linux it is advised to use transparent huge pages
+//     (madvise), which makes its first touch (0.5 GB for benzene/6-31G*)
+//     about twice as cheap on a virtual machine.
+//
+// Kernels. Four loops carry nearly all the arithmetic, each in a portable
+// Go version (kernel.go) and, on amd64 processors with AVX2 and FMA, an
+// assembly version (kernel_amd64.s) vectorized four doubles wide and
+// chosen at start-up from the processor's features (golang.org/x/sys/cpu):
+// dotProducts (C = A·Bᵀ, the potential blocks φᵀZ; lanes over the
+// contraction index, 3×4 register tiles, each element reduced as
+// (lane0+lane1)+(lane2+lane3)), matMul (C = A·B, the density step
+// U = D φ or L(Lᵀφ); lanes over the columns, 4×12 tiles, the sum over
+// the contraction in order), columnDots (ρ and ∇ρ from U; lanes over the
+// points) and expNonPositive (e^x for x ≤ 0, Taylor polynomial of degree
+// 13 after reduction by ln 2; within a few units in the last place of
+// math.Exp). Tails of every dimension use masked loads and stores, and in
+// every kernel an element's value depends only on its own inputs, never
+// on its position in a tile, so results stay independent of the thread
+// count and of which batches are stored. The vector kernels round
+// differently from the portable ones (fused multiply–adds, another
+// summation order), at the 1e-16 relative level. Other processors and
+// architectures use the portable kernels, and the build tag purego forces
+// them everywhere (go test -tags purego).
 package dft

@@ -111,9 +111,12 @@ type gradWorkspace struct {
 	d1     [3][]float64 // np×m first derivatives x, y, z
 	d2     [6][]float64 // np×m second derivatives xx, xy, xz, yy, yz, zz
 	cart   []float64
-	t      []float64 // np×m: T = Z'D
-	zp     []float64 // np×m: Z'
-	colSum []float64 // 3m
+	lim    []float64 // per primitive of a shell: screening bound on αr²
+	rad    radialScratch
+	pw     [3][16][]float64 // powers of the coordinates (evalDerivDiagonal)
+	t      []float64        // np×m: T = Z'D
+	zp     []float64        // np×m: Z'
+	colSum []float64        // 3m
 }
 
 // gradBatch adds one batch's contribution to out (3·natoms).
@@ -245,20 +248,52 @@ func evalFunctionDerivatives(b *integral.Basis, ws *gradWorkspace, start, np int
 			c2[k] = ws.cart[(4+k)*nc : (5+k)*nc]
 		}
 		cx, cy, cz := sh.Center[0], sh.Center[1], sh.Center[2]
+		// A primitive whose terms |c|·max(1, 2α, 4α²)·e^{−αr²} in rad, d1r
+		// and d2r are all below primitiveCutoff is left out (as in
+		// evalFunctions): skip it when αr² exceeds lim.
+		if cap(ws.lim) < len(sh.Exponents) {
+			ws.lim = make([]float64, len(sh.Exponents))
+		}
+		lim := ws.lim[:len(sh.Exponents)]
+		for k, a := range sh.Exponents {
+			lim[k] = math.Log(math.Abs(coefs[k]) * max(1, 2*a, 4*a*a) / primitiveCutoff)
+		}
+		// rad = Σ c e^{−αr²}; d1r = Σ −2α c e^{−αr²}; d2r = Σ 4α² c e^{−αr²}:
+		// ∂_j rad = d1r r_j, ∂_j∂_k rad = d1r δ_jk + d2r r_j r_k; at every
+		// point, one primitive at a time (exponentials by the vector kernel).
+		rs := ws.rad.reset(np)
+		for pt := 0; pt < np; pt++ {
+			i := start + pt
+			dx, dy, dz := gx[i]-cx, gy[i]-cy, gz[i]-cz
+			rs.r2[pt] = dx*dx + dy*dy + dz*dz
+		}
+		for k, a := range sh.Exponents {
+			if !rs.primitive(a, lim[k]) {
+				continue
+			}
+			c := coefs[k]
+			for pt, x := range rs.ex {
+				if a*rs.r2[pt] > lim[k] {
+					continue
+				}
+				ex := c * x
+				rs.f0[pt] += ex
+				rs.f1[pt] -= 2 * a * ex
+				rs.f2[pt] += 4 * a * a * ex
+			}
+		}
+		if diagonalTransform(trans, nf, nc) {
+			// Cartesian shells (s, p, Cartesian d…): one scaled component
+			// per function, evaluated component by component over the points.
+			evalDerivDiagonal(ws, rs, gx[start:start+np], gy[start:start+np], gz[start:start+np], sh.Center, comps, trans, col, np, m, second)
+			col += nf
+			continue
+		}
 		var pw [3][16]float64
 		for pt := 0; pt < np; pt++ {
 			i := start + pt
 			r := [3]float64{gx[i] - cx, gy[i] - cy, gz[i] - cz}
-			r2 := r[0]*r[0] + r[1]*r[1] + r[2]*r[2]
-			// rad = Σ c e^{−αr²}; d1r = Σ −2α c e^{−αr²}; d2r = Σ 4α² c e^{−αr²}:
-			// ∂_j rad = d1r r_j, ∂_j∂_k rad = d1r δ_jk + d2r r_j r_k.
-			var rad, d1r, d2r float64
-			for k, a := range sh.Exponents {
-				ex := coefs[k] * math.Exp(-a*r2)
-				rad += ex
-				d1r -= 2 * a * ex
-				d2r += 4 * a * a * ex
-			}
+			rad, d1r, d2r := rs.f0[pt], rs.f1[pt], rs.f2[pt]
 			if math.Abs(rad) < 1e-300 && math.Abs(d1r) < 1e-300 {
 				continue
 			}
@@ -352,5 +387,92 @@ func evalFunctionDerivatives(b *integral.Basis, ws *gradWorkspace, start, np int
 			}
 		}
 		col += nf
+	}
+}
+
+// evalDerivDiagonal is evalFunctionDerivatives for one shell with a
+// diagonal transform whose radial sums are in rs (as the general path,
+// faster): function c is t_c P(r) R(r) with the monomial
+// P = x^{e0} y^{e1} z^{e2}, evaluated one function at a time over the np
+// points gx, gy, gz into column col of the point-major blocks of width m.
+func evalDerivDiagonal(ws *gradWorkspace, rs *radialScratch, gx, gy, gz []float64, center [3]float64, comps [][3]int, trans []float64, col, np, m int, second bool) {
+	nc := len(comps)
+	l := 0
+	for _, e := range comps {
+		l = max(l, e[0]+e[1]+e[2])
+	}
+	// Points where the radial part and its first derivative vanish give
+	// zeros, as in the general path.
+	f0, f1, f2 := rs.f0[:np], rs.f1[:np], rs.f2[:np]
+	for pt := range f0 {
+		if math.Abs(f0[pt]) < 1e-300 && math.Abs(f1[pt]) < 1e-300 {
+			f0[pt], f1[pt], f2[pt] = 0, 0, 0
+		}
+	}
+	n := max(l, 1) + 1
+	for axis, bc := range [3][]float64{gx[:np], gy[:np], gz[:np]} {
+		for k := 0; k < n; k++ {
+			ws.pw[axis][k] = resize(ws.pw[axis][k], np)
+		}
+		one, d := ws.pw[axis][0], ws.pw[axis][1]
+		for pt, v := range bc {
+			one[pt] = 1
+			d[pt] = v - center[axis]
+		}
+		for k := 2; k < n; k++ {
+			prev, cur := ws.pw[axis][k-1], ws.pw[axis][k]
+			for pt, v := range d {
+				cur[pt] = prev[pt] * v
+			}
+		}
+	}
+	dx, dy, dz := ws.pw[0][1], ws.pw[1][1], ws.pw[2][1]
+	zero := ws.pw[0][0][:0] // placeholder for absent derivative powers
+	for c, e := range comps {
+		t := trans[c*nc+c]
+		// x^e, e x^{e−1}, e(e−1) x^{e−2} per axis: the power rows and
+		// their factors (0 where the derivative vanishes).
+		var p0, p1, p2 [3][]float64
+		var k1, k2 [3]float64
+		for a := 0; a < 3; a++ {
+			p0[a], p1[a], p2[a] = ws.pw[a][e[a]], zero, zero
+			if e[a] >= 1 {
+				p1[a], k1[a] = ws.pw[a][e[a]-1], float64(e[a])
+			}
+			if e[a] >= 2 {
+				p2[a], k2[a] = ws.pw[a][e[a]-2], float64(e[a]*(e[a]-1))
+			}
+		}
+		at := func(s []float64, pt int) float64 {
+			if len(s) == 0 {
+				return 0
+			}
+			return s[pt]
+		}
+		for pt := 0; pt < np; pt++ {
+			x0, y0, z0 := p0[0][pt], p0[1][pt], p0[2][pt]
+			x1, y1, z1 := k1[0]*at(p1[0], pt), k1[1]*at(p1[1], pt), k1[2]*at(p1[2], pt)
+			rx, ry, rz := dx[pt], dy[pt], dz[pt]
+			rad, d1r := f0[pt], f1[pt]
+			poly := x0 * y0 * z0
+			px, py, pz := x1*y0*z0, x0*y1*z0, x0*y0*z1
+			i := pt*m + col + c
+			ws.phi[i] = t * (poly * rad)
+			ws.d1[0][i] = t * (px*rad + poly*d1r*rx)
+			ws.d1[1][i] = t * (py*rad + poly*d1r*ry)
+			ws.d1[2][i] = t * (pz*rad + poly*d1r*rz)
+			if !second {
+				continue
+			}
+			x2, y2, z2 := k2[0]*at(p2[0], pt), k2[1]*at(p2[1], pt), k2[2]*at(p2[2], pt)
+			pd2 := poly * f2[pt]
+			pd1 := poly * d1r
+			ws.d2[0][i] = t * (x2*y0*z0*rad + (px*rx+px*rx)*d1r + pd2*rx*rx + pd1)
+			ws.d2[1][i] = t * (x1*y1*z0*rad + (px*ry+py*rx)*d1r + pd2*rx*ry)
+			ws.d2[2][i] = t * (x1*y0*z1*rad + (px*rz+pz*rx)*d1r + pd2*rx*rz)
+			ws.d2[3][i] = t * (x0*y2*z0*rad + (py*ry+py*ry)*d1r + pd2*ry*ry + pd1)
+			ws.d2[4][i] = t * (x0*y1*z1*rad + (py*rz+pz*ry)*d1r + pd2*ry*rz)
+			ws.d2[5][i] = t * (x0*y0*z2*rad + (pz*rz+pz*rz)*d1r + pd2*rz*rz + pd1)
+		}
 	}
 }

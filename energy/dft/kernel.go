@@ -1,13 +1,16 @@
 package dft
 
-// dotProducts sets c[i·ldc+j] = Σ_t a[i·k+t] b[j·k+t] for 0 ≤ i < na and
+import "math"
+
+// dotProductsGo sets c[i·ldc+j] = Σ_t a[i·k+t] b[j·k+t] for 0 ≤ i < na and
 // 0 ≤ j < nb: the products of the rows of two row-major matrices (A·Bᵀ),
 // with the contraction index contiguous in memory. It works on 4×2 tiles
 // of c so that each loaded element serves several products (eight
 // accumulators, which the amd64 and arm64 register files hold), and sums
 // every element in the same order whatever the tile, so the result depends
-// only on the inputs.
-func dotProducts(a []float64, na int, b []float64, nb int, k int, c []float64, ldc int) {
+// only on the inputs. It is the portable kernel behind dotProducts
+// (kernel_amd64.go, kernel_other.go).
+func dotProductsGo(a []float64, na int, b []float64, nb int, k int, c []float64, ldc int) {
 	if na == 0 || nb == 0 {
 		return
 	}
@@ -75,6 +78,66 @@ func dotProducts(a []float64, na int, b []float64, nb int, k int, c []float64, l
 				s += y * bj[t]
 			}
 			ci[j] = s
+		}
+	}
+}
+
+// columnDotsGo sets out[p] = Σ_a x[a·np+p] y[a·np+p] for two function-major
+// m×np blocks, adding the rows in order. It is the portable kernel behind columnDots.
+func columnDotsGo(x, y []float64, m, np int, out []float64) {
+	out = out[:np]
+	clear(out)
+	for a := 0; a < m; a++ {
+		xr := x[a*np : a*np+np]
+		yr := y[a*np : a*np+np]
+		for pt := range out {
+			out[pt] += xr[pt] * yr[pt]
+		}
+	}
+}
+
+// matMulGo sets c (m×n) = a (m×k) · b (k×n), all three row-major and
+// contiguous, adding the k products of every element in order. It is the
+// portable kernel behind matMul.
+func matMulGo(a []float64, m int, b []float64, k, n int, c []float64) {
+	for i := 0; i < m; i++ {
+		ci := c[i*n : i*n+n]
+		clear(ci)
+		for t, x := range a[i*k : i*k+k] {
+			bt := b[t*n : t*n+n]
+			bt = bt[:len(ci)]
+			for j, y := range bt {
+				ci[j] += x * y
+			}
+		}
+	}
+}
+
+// expNonPositiveGo sets out[i] = e^{x[i]} for x[i] ≤ 0, with values below
+// −708 (whose exponential is subnormal) giving 0, by math.Exp. It is the
+// portable kernel behind expNonPositive.
+func expNonPositiveGo(x, out []float64) {
+	out = out[:len(x)]
+	for i, v := range x {
+		if v < -708 {
+			out[i] = 0
+			continue
+		}
+		out[i] = math.Exp(v)
+	}
+}
+
+// zRowsGo sets z[a·np+p] = half[p]·φ[a·np+p] + (bx[p]·gx[a·np+p] +
+// by[p]·gy[a·np+p] + bz[p]·gz[a·np+p]) for m function-major rows of np
+// points. It is the portable kernel behind zRows.
+func zRowsGo(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64) {
+	half, bx, by, bz = half[:np], bx[:np], by[:np], bz[:np]
+	for a := 0; a < m; a++ {
+		zr := z[a*np : a*np+np]
+		pr := phi[a*np : a*np+np]
+		xr, yr, zz := gx[a*np:a*np+np], gy[a*np:a*np+np], gz[a*np:a*np+np]
+		for pt := range zr {
+			zr[pt] = half[pt]*pr[pt] + (bx[pt]*xr[pt] + by[pt]*yr[pt] + bz[pt]*zz[pt])
 		}
 	}
 }

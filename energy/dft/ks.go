@@ -47,6 +47,12 @@ type Potential struct {
 	CacheBytes int64
 	cache      []batchValues // per batch; vals nil until stored
 	cached     []bool        // per batch: store its values
+	// slab holds the stored values of all cached batches, batch bi from
+	// slabOff[bi] with room for all functions of its shells: the values
+	// are evaluated there in place, and it is one allocation that can be
+	// backed by huge pages (hugepages_linux.go).
+	slab    []float64
+	slabOff []int
 	// Scratch kept from one Build to the next: the potential blocks of one
 	// group of batches and the per-thread workspaces.
 	results []batchResult
@@ -243,6 +249,8 @@ func (p *Potential) prepareCache() {
 		nv = 4
 	}
 	var used int64
+	p.slabOff = make([]int, len(p.grid.Batches))
+	total := 0
 	for bi, bt := range p.grid.Batches {
 		m := 0
 		for _, si := range p.batchShells[bi] {
@@ -254,14 +262,22 @@ func (p *Potential) prepareCache() {
 		}
 		used += size
 		p.cached[bi] = true
+		p.slabOff[bi] = total
+		total += int(nv) * m * (bt.End - bt.Start)
+	}
+	if total > 0 {
+		p.slab = make([]float64, total)
+		adviseHugePages(p.slab)
 	}
 }
 
-// CachedBytes returns the memory held by stored basis-function values.
+// CachedBytes returns the memory held by stored basis-function values:
+// the space set aside for them on the first Build (room for every function
+// of the shells that reach each stored batch) and their function lists.
 func (p *Potential) CachedBytes() int64 {
-	var s int64
+	s := 8 * int64(len(p.slab))
 	for _, c := range p.cache {
-		s += 8*int64(len(c.vals)) + 4*int64(len(c.fns))
+		s += 4 * int64(len(c.fns))
 	}
 	return s
 }
@@ -274,18 +290,65 @@ type workspace struct {
 	lim      []float64
 	lsub     []float64 // m×r rows of the density factor
 	lsubT    []float64 // r×m
-	x        []float64 // np×r: φ L_sub
+	x        []float64 // r×np: L_subᵀ φ
 	cart     []float64
-	phiRow   []float64 // np×m: φ point-major
 	dsub     []float64 // m×m
 	ut       []float64 // m×np: (Dφ)ᵀ
 	zt       []float64 // m×np
+	half     []float64 // np: ½ ∂e/∂ρ w
 	mblk     []float64 // m×m
 	rho      [2][]float64
 	grad     [2][3][]float64
 	coef     coefficients
 	rhoViews [][]float64
 	grdViews [][3][]float64
+	rad      radialScratch
+	pw       [3][16][]float64 // powers of the coordinates (evalDiagonal)
+}
+
+// radialScratch holds, for the points of a batch and one shell, the squared
+// distances to its center, the exponentials of one primitive and the radial
+// sums f0 = Σ c e^{−αr²}, f1 = Σ −2α c e^{−αr²}, f2 = Σ 4α² c e^{−αr²}.
+type radialScratch struct {
+	r2, arg, ex, f0, f1, f2 []float64
+}
+
+// powers returns pw[axis][k] (k < n), scratch rows of np points.
+func (ws *workspace) powers(n, np int) *[3][16][]float64 {
+	for axis := range ws.pw {
+		for k := 0; k < n; k++ {
+			ws.pw[axis][k] = resize(ws.pw[axis][k], np)
+		}
+	}
+	return &ws.pw
+}
+
+// radial returns the scratch sized for np points with f0, f1, f2 zeroed.
+func (ws *workspace) radial(np int) *radialScratch { return ws.rad.reset(np) }
+
+func (rs *radialScratch) reset(np int) *radialScratch {
+	rs.r2 = resize(rs.r2, np)
+	rs.arg = resize(rs.arg, np)
+	rs.ex = resize(rs.ex, np)
+	rs.f0 = grow(rs.f0, np)
+	rs.f1 = grow(rs.f1, np)
+	rs.f2 = grow(rs.f2, np)
+	return rs
+}
+
+// primitive sets ex to e^{−αr²} at the points (from r2) and reports
+// whether any point has αr² ≤ lim, that is, whether the primitive counts
+// anywhere; when it does not, ex is left unset.
+func (rs *radialScratch) primitive(alpha, lim float64) bool {
+	used := false
+	for pt, r2 := range rs.r2 {
+		rs.arg[pt] = -alpha * r2
+		used = used || alpha*r2 <= lim
+	}
+	if used {
+		expNonPositive(rs.arg, rs.ex)
+	}
+	return used
 }
 
 func grow(s []float64, n int) []float64 {
@@ -323,8 +386,17 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 	for _, si := range shells {
 		mAll += p.b.Shells[si].NumFunctions()
 	}
-	ws.eval = resize(ws.eval, nv*mAll*np)
-	p.evalFunctions(ws.eval, ws, bt.Start, np, shells, mAll, gga)
+	// A stored batch is evaluated in its place in the slab, others in
+	// the workspace.
+	var eval []float64
+	if p.cached[bi] {
+		off := p.slabOff[bi]
+		eval = p.slab[off : off+nv*mAll*np : off+nv*mAll*np]
+	} else {
+		ws.eval = resize(ws.eval, nv*mAll*np)
+		eval = ws.eval
+	}
+	p.evalFunctions(eval, ws, bt.Start, np, shells, mAll, gga)
 	// Keep the functions that reach functionCutoff (value or a derivative)
 	// somewhere on the batch, moving their rows down in place.
 	ws.fns, ws.keep = ws.fns[:0], ws.keep[:0]
@@ -335,7 +407,7 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 			reached := false
 		scan:
 			for k := 0; k < nv; k++ {
-				for _, x := range ws.eval[(k*mAll+a)*np : (k*mAll+a+1)*np] {
+				for _, x := range eval[(k*mAll+a)*np : (k*mAll+a+1)*np] {
 					if math.Abs(x) >= functionCutoff {
 						reached = true
 						break scan
@@ -353,15 +425,15 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 	if m < mAll {
 		for k := 0; k < nv; k++ {
 			for j, src := range ws.keep {
-				copy(ws.eval[(k*m+j)*np:(k*m+j+1)*np], ws.eval[(k*mAll+int(src))*np:(k*mAll+int(src)+1)*np])
+				copy(eval[(k*m+j)*np:(k*m+j+1)*np], eval[(k*mAll+int(src))*np:(k*mAll+int(src)+1)*np])
 			}
 		}
 	}
-	fns, vals := ws.fns, ws.eval[:nv*m*np]
+	fns, vals := ws.fns, eval[:nv*m*np]
 	if p.cached[bi] {
 		c := &p.cache[bi]
 		c.fns = append([]int32(nil), fns...)
-		c.vals = append(make([]float64, 0, len(vals)), vals...)
+		c.vals = vals[:len(vals):len(vals)] // in place in the slab
 		return c.fns, c.vals
 	}
 	return fns, vals
@@ -391,8 +463,6 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 		}
 	}
 	n := p.b.NBF
-	ws.phiRow = resize(ws.phiRow, np*m)
-	transpose(phiT, m, np, ws.phiRow)
 	ws.dsub = resize(ws.dsub, m*m)
 	ws.ut = resize(ws.ut, m*np)
 	ws.rhoViews = ws.rhoViews[:0]
@@ -400,7 +470,7 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 	for s := 0; s < nspin; s++ {
 		// U = D_sub φ (function-major), ρ = Σ_μ φ_μ U_μ, ∇ρ = 2 Σ_μ ∇φ_μ U_μ.
 		if f := factors[s]; f.ok && 2*f.rank < m {
-			// D = L Lᵀ of rank r: X = φ L_sub (np×r), U = L_sub Xᵀ, at
+			// D = L Lᵀ of rank r: Xᵀ = L_subᵀ φ (r×np), U = L_sub Xᵀ, at
 			// 4·np·m·r operations instead of 2·np·m².
 			r := f.rank
 			ws.lsub = resize(ws.lsub, m*r)
@@ -409,9 +479,9 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 				copy(ws.lsub[a*r:a*r+r], f.l[int(fa)*r:int(fa)*r+r])
 			}
 			transpose(ws.lsub, m, r, ws.lsubT)
-			ws.x = resize(ws.x, np*r)
-			dotProducts(ws.phiRow, np, ws.lsubT, r, m, ws.x, r)
-			dotProducts(ws.lsub, m, ws.x, np, r, ws.ut, np)
+			ws.x = resize(ws.x, r*np)
+			matMul(ws.lsubT, r, phiT, m, np, ws.x)
+			matMul(ws.lsub, m, ws.x, r, np, ws.ut)
 		} else {
 			for a, fa := range fns {
 				row := int(fa) * n
@@ -420,7 +490,7 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 					dr[b] = dens[s][row+int(fb)]
 				}
 			}
-			dotProducts(ws.dsub, m, ws.phiRow, np, m, ws.ut, np)
+			matMul(ws.dsub, m, phiT, m, np, ws.ut)
 		}
 		ws.rho[s] = grow(ws.rho[s], np)
 		columnDots(phiT, ws.ut, m, np, ws.rho[s])
@@ -460,16 +530,16 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 		if gga {
 			cb = [3][]float64{c.b[s][0][:np], c.b[s][1][:np], c.b[s][2][:np]}
 		}
-		for a := 0; a < m; a++ {
-			zr := ws.zt[a*np : a*np+np]
-			pr := phiT[a*np : a*np+np]
-			if gga {
-				xr, yr, zz := d1[0][a*np:a*np+np], d1[1][a*np:a*np+np], d1[2][a*np:a*np+np]
-				bx, by, bz := cb[0], cb[1], cb[2]
-				for pt := range zr {
-					zr[pt] = 0.5*ca[pt]*pr[pt] + (bx[pt]*xr[pt] + by[pt]*yr[pt] + bz[pt]*zz[pt])
-				}
-			} else {
+		if gga {
+			ws.half = resize(ws.half, np)
+			for pt, x := range ca {
+				ws.half[pt] = 0.5 * x
+			}
+			zRows(phiT, d1[0], d1[1], d1[2], ws.half, cb[0], cb[1], cb[2], m, np, ws.zt)
+		} else {
+			for a := 0; a < m; a++ {
+				zr := ws.zt[a*np : a*np+np]
+				pr := phiT[a*np : a*np+np]
 				for pt := range zr {
 					zr[pt] = 0.5 * ca[pt] * pr[pt]
 				}
@@ -568,20 +638,6 @@ func factorDensity(d []float64, n int) densityFactor {
 	return densityFactor{l: l, rank: r, ok: true}
 }
 
-// columnDots sets out[p] = Σ_a x[a·np+p] y[a·np+p] for two function-major
-// m×np blocks, adding the rows in order.
-func columnDots(x, y []float64, m, np int, out []float64) {
-	out = out[:np]
-	clear(out)
-	for a := 0; a < m; a++ {
-		xr := x[a*np : a*np+np]
-		yr := y[a*np : a*np+np]
-		for pt := range out {
-			out[pt] += xr[pt] * yr[pt]
-		}
-	}
-}
-
 // evalFunctions fills out, function-major, with the values (and, for a
 // GGA, then the x, y and z derivatives in three more blocks) of the m
 // functions of the given shells (in shell order) at np points from start:
@@ -598,11 +654,6 @@ func (p *Potential) evalFunctions(out []float64, ws *workspace, start, np int, s
 		comps := integral.CartesianExponents(l)
 		nc := len(comps)
 		nf := sh.NumFunctions()
-		if cap(ws.cart) < 4*nc {
-			ws.cart = make([]float64, 4*nc)
-		}
-		cv := ws.cart[:nc]
-		cgx, cgy, cgz := ws.cart[nc:2*nc], ws.cart[2*nc:3*nc], ws.cart[3*nc:4*nc]
 		cx, cy, cz := sh.Center[0], sh.Center[1], sh.Center[2]
 		// A primitive whose term in the radial part and in its derivative,
 		// |c|·max(1, 2α)·e^{−αr²}, is below primitiveCutoff is left out:
@@ -614,76 +665,190 @@ func (p *Potential) evalFunctions(out []float64, ws *workspace, start, np int, s
 		for k, a := range sh.Exponents {
 			lim[k] = math.Log(math.Abs(coefs[k]) * max(1, 2*a) / primitiveCutoff)
 		}
-		var px, py, pz [16]float64
+		// Radial part and its derivative d/d(r²)·2 at every point, one
+		// primitive at a time (exponentials by the vector kernel).
+		rs := ws.radial(np)
 		for pt := 0; pt < np; pt++ {
 			dx, dy, dz := bx[pt]-cx, by[pt]-cy, bz[pt]-cz
-			r2 := dx*dx + dy*dy + dz*dz
-			var rad, drad float64 // radial part and its derivative d/d(r²)·2
-			for k, a := range sh.Exponents {
-				if a*r2 > lim[k] {
+			rs.r2[pt] = dx*dx + dy*dy + dz*dz
+		}
+		for k, a := range sh.Exponents {
+			if !rs.primitive(a, lim[k]) {
+				continue
+			}
+			c := coefs[k]
+			for pt, x := range rs.ex {
+				if a*rs.r2[pt] > lim[k] {
 					continue
 				}
-				ex := coefs[k] * math.Exp(-a*r2)
-				rad += ex
-				drad -= 2 * a * ex
+				ex := c * x
+				rs.f0[pt] += ex
+				rs.f1[pt] -= 2 * a * ex
 			}
-			if math.Abs(rad) < 1e-300 && math.Abs(drad) < 1e-300 {
-				for f := 0; f < nf; f++ {
-					out[(col+f)*np+pt] = 0
-					if gga {
-						out[(m+col+f)*np+pt] = 0
-						out[(2*m+col+f)*np+pt] = 0
-						out[(3*m+col+f)*np+pt] = 0
-					}
+		}
+		if diagonalTransform(trans, nf, nc) {
+			// Cartesian shells (s, p, Cartesian d…): each function is one
+			// scaled component, evaluated row by row over the points.
+			evalDiagonal(out, ws, rs, bx, by, bz, sh.Center, comps, trans, col, np, m, gga)
+		} else {
+			evalGeneral(out, ws, rs, bx, by, bz, sh.Center, comps, trans, nf, col, np, m, gga)
+		}
+		col += nf
+	}
+}
+
+// evalGeneral is evalFunctions for one shell whose radial sums are in rs,
+// for any transform from Cartesian components to functions, point by point.
+func evalGeneral(out []float64, ws *workspace, rs *radialScratch, bx, by, bz []float64, center [3]float64, comps [][3]int, trans []float64, nf, col, np, m int, gga bool) {
+	nc := len(comps)
+	l := 0
+	for _, e := range comps {
+		l = max(l, e[0]+e[1]+e[2])
+	}
+	if cap(ws.cart) < 4*nc {
+		ws.cart = make([]float64, 4*nc)
+	}
+	cv := ws.cart[:nc]
+	cgx, cgy, cgz := ws.cart[nc:2*nc], ws.cart[2*nc:3*nc], ws.cart[3*nc:4*nc]
+	cx, cy, cz := center[0], center[1], center[2]
+	var px, py, pz [16]float64
+	for pt := 0; pt < np; pt++ {
+		dx, dy, dz := bx[pt]-cx, by[pt]-cy, bz[pt]-cz
+		rad, drad := rs.f0[pt], rs.f1[pt]
+		if math.Abs(rad) < 1e-300 && math.Abs(drad) < 1e-300 {
+			for f := 0; f < nf; f++ {
+				out[(col+f)*np+pt] = 0
+				if gga {
+					out[(m+col+f)*np+pt] = 0
+					out[(2*m+col+f)*np+pt] = 0
+					out[(3*m+col+f)*np+pt] = 0
+				}
+			}
+			continue
+		}
+		px[0], py[0], pz[0] = 1, 1, 1
+		for k := 1; k <= l+1; k++ {
+			px[k], py[k], pz[k] = px[k-1]*dx, py[k-1]*dy, pz[k-1]*dz
+		}
+		for c, e := range comps {
+			poly := px[e[0]] * py[e[1]] * pz[e[2]]
+			cv[c] = poly * rad
+			if gga {
+				var ddx, ddy, ddz float64
+				if e[0] > 0 {
+					ddx = float64(e[0]) * px[e[0]-1] * py[e[1]] * pz[e[2]]
+				}
+				if e[1] > 0 {
+					ddy = float64(e[1]) * px[e[0]] * py[e[1]-1] * pz[e[2]]
+				}
+				if e[2] > 0 {
+					ddz = float64(e[2]) * px[e[0]] * py[e[1]] * pz[e[2]-1]
+				}
+				cgx[c] = ddx*rad + poly*drad*dx
+				cgy[c] = ddy*rad + poly*drad*dy
+				cgz[c] = ddz*rad + poly*drad*dz
+			}
+		}
+		for f := 0; f < nf; f++ {
+			tr := trans[f*nc : f*nc+nc]
+			var s, sx, sy, sz float64
+			for c, t := range tr {
+				if t == 0 {
+					continue
+				}
+				s += t * cv[c]
+				if gga {
+					sx += t * cgx[c]
+					sy += t * cgy[c]
+					sz += t * cgz[c]
+				}
+			}
+			out[(col+f)*np+pt] = s
+			if gga {
+				out[(m+col+f)*np+pt] = sx
+				out[(2*m+col+f)*np+pt] = sy
+				out[(3*m+col+f)*np+pt] = sz
+			}
+		}
+	}
+}
+
+// diagonalTransform reports whether the nf×nc transform of a shell is
+// diagonal (one scaled Cartesian component per function).
+func diagonalTransform(trans []float64, nf, nc int) bool {
+	if nf != nc {
+		return false
+	}
+	for f := 0; f < nf; f++ {
+		for c := 0; c < nc; c++ {
+			if c != f && trans[f*nc+c] != 0 {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// evalDiagonal is evalFunctions for one shell with a diagonal transform
+// (as evalGeneral, faster),
+// whose radial sums are in rs: function c is t_c x^{e0} y^{e1} z^{e2} R(r),
+// computed one function row at a time over the points with the same
+// arithmetic, term by term, as the general path.
+func evalDiagonal(out []float64, ws *workspace, rs *radialScratch, bx, by, bz []float64, center [3]float64, comps [][3]int, trans []float64, col, np, m int, gga bool) {
+	nc := len(comps)
+	l := 0
+	for _, e := range comps {
+		l = max(l, e[0]+e[1]+e[2])
+	}
+	// Points where the radial part and its derivative vanish give zeros.
+	rad, drad := rs.f0[:np], rs.f1[:np]
+	for pt := range rad {
+		if math.Abs(rad[pt]) < 1e-300 && math.Abs(drad[pt]) < 1e-300 {
+			rad[pt], drad[pt] = 0, 0
+		}
+	}
+	// Powers x^k, y^k, z^k of the coordinates relative to the center.
+	pw := ws.powers(max(l, 1)+1, np)
+	for axis, bc := range [3][]float64{bx[:np], by[:np], bz[:np]} {
+		one, d := pw[axis][0], pw[axis][1]
+		for pt, v := range bc {
+			one[pt] = 1
+			d[pt] = v - center[axis]
+		}
+		for k := 2; k <= l; k++ {
+			prev, cur := pw[axis][k-1], pw[axis][k]
+			for pt, v := range d {
+				cur[pt] = prev[pt] * v
+			}
+		}
+	}
+	dx, dy, dz := pw[0][1], pw[1][1], pw[2][1]
+	for c, e := range comps {
+		t := trans[c*nc+c]
+		px, py, pz := pw[0][e[0]], pw[1][e[1]], pw[2][e[2]]
+		v := out[(col+c)*np : (col+c+1)*np]
+		for pt := range v {
+			v[pt] = t * (px[pt] * py[pt] * pz[pt] * rad[pt])
+		}
+		if !gga {
+			continue
+		}
+		// ∂_j φ = t (e_j x_j^{e_j−1} Π_{k≠j} x_k^{e_k} R + P R' r_j).
+		for j, dj := range [3][]float64{dx, dy, dz} {
+			g := out[((j+1)*m+col+c)*np : ((j+1)*m+col+c+1)*np]
+			if e[j] == 0 {
+				for pt := range g {
+					g[pt] = t * (px[pt] * py[pt] * pz[pt] * drad[pt] * dj[pt])
 				}
 				continue
 			}
-			px[0], py[0], pz[0] = 1, 1, 1
-			for k := 1; k <= l+1; k++ {
-				px[k], py[k], pz[k] = px[k-1]*dx, py[k-1]*dy, pz[k-1]*dz
-			}
-			for c, e := range comps {
-				poly := px[e[0]] * py[e[1]] * pz[e[2]]
-				cv[c] = poly * rad
-				if gga {
-					var ddx, ddy, ddz float64
-					if e[0] > 0 {
-						ddx = float64(e[0]) * px[e[0]-1] * py[e[1]] * pz[e[2]]
-					}
-					if e[1] > 0 {
-						ddy = float64(e[1]) * px[e[0]] * py[e[1]-1] * pz[e[2]]
-					}
-					if e[2] > 0 {
-						ddz = float64(e[2]) * px[e[0]] * py[e[1]] * pz[e[2]-1]
-					}
-					cgx[c] = ddx*rad + poly*drad*dx
-					cgy[c] = ddy*rad + poly*drad*dy
-					cgz[c] = ddz*rad + poly*drad*dz
-				}
-			}
-			for f := 0; f < nf; f++ {
-				tr := trans[f*nc : f*nc+nc]
-				var s, sx, sy, sz float64
-				for c, t := range tr {
-					if t == 0 {
-						continue
-					}
-					s += t * cv[c]
-					if gga {
-						sx += t * cgx[c]
-						sy += t * cgy[c]
-						sz += t * cgz[c]
-					}
-				}
-				out[(col+f)*np+pt] = s
-				if gga {
-					out[(m+col+f)*np+pt] = sx
-					out[(2*m+col+f)*np+pt] = sy
-					out[(3*m+col+f)*np+pt] = sz
-				}
+			q := [3][]float64{px, py, pz}
+			q[j] = pw[j][e[j]-1]
+			ej := float64(e[j])
+			for pt := range g {
+				g[pt] = t * (ej*q[0][pt]*q[1][pt]*q[2][pt]*rad[pt] + px[pt]*py[pt]*pz[pt]*drad[pt]*dj[pt])
 			}
 		}
-		col += nf
 	}
 }
 
