@@ -98,6 +98,13 @@ type HessianOptions struct {
 	// it only whole columns are derived, which are central differences
 	// of their own and so cancel any noise of the reference point.
 	AxisOperationsExact bool
+	// Reference, if set, is the surface's evaluation at x0 (gradient, and
+	// the dipole with Dipole), made with the same settings, and the
+	// surface's warm start is that evaluation's: the Hessian then takes it
+	// instead of evaluating the reference point again (a relaxation's last
+	// point). It is ignored when symmetrizing moved an atom by more than
+	// 1e-10 bohr.
+	Reference *gradient.Point
 }
 
 // Progress reports the state of a Hessian calculation.
@@ -220,7 +227,13 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 
 	// The reference point.
 	ref, haveRef := st.load(referenceName, n, step, -1, 0)
-	if !haveRef {
+	if r := opt.Reference; !haveRef && r != nil && len(r.Gradient) == n && l.sym.shiftBohr <= 1e-10 {
+		ref = storedPoint{Coordinate: -1, StepBohr: step, EnergyHartree: r.EnergyHartree, Gradient: append([]float64(nil), r.Gradient...),
+			DipoleAU: r.DipoleAU, SCFIterations: r.SCFIterations, GapHartree: r.GapHartree}
+		if err := st.save(referenceName, &ref); err != nil {
+			return nil, err
+		}
+	} else if !haveRef {
 		if ref, err = computePoint(ctx, s, x0, step, Displacement{Coordinate: -1}, opt.Dipole, threads, nil, st); err != nil {
 			return nil, err
 		}

@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/rand"
 	"testing"
+
+	"poise/gradient"
 )
 
 // symModel is a molecule of the symmetry tests: Morse terms between all
@@ -366,5 +368,39 @@ func TestSymmetryPiecewise(t *testing.T) {
 		if h.HessianAU[i] != one.HessianAU[i] {
 			t.Fatalf("H[%d]: piecewise %.12f, one-shot %.12f", i, h.HessianAU[i], one.HessianAU[i])
 		}
+	}
+}
+
+// TestHessianGivenReference: a reference point handed over (a relaxation's
+// last evaluation) is used as it is: one evaluation fewer, the same
+// Hessian.
+func TestHessianGivenReference(t *testing.T) {
+	p, x := waterModel()
+	ctx := context.Background()
+	opt := HessianOptions{Dipole: true, SymmetryKinds: []int{8, 1, 1}, AxisOperationsExact: true}
+	want, err := ComputeHessian(ctx, p, x, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref gradient.Point
+	if err := p.Evaluate(ctx, x, gradient.Request{Gradient: true, Dipole: true}, &ref); err != nil {
+		t.Fatal(err)
+	}
+	opt.Reference = &ref
+	p.evals.Store(0)
+	got, err := ComputeHessian(ctx, p, x, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Evaluations != want.Evaluations-1 || p.Evaluations() != want.Displacements {
+		t.Errorf("%d evaluations with the reference given, %d without", got.Evaluations, want.Evaluations)
+	}
+	for i := range want.HessianAU {
+		if got.HessianAU[i] != want.HessianAU[i] {
+			t.Fatalf("H[%d] %.12f, want %.12f", i, got.HessianAU[i], want.HessianAU[i])
+		}
+	}
+	if got.EnergyHartree != want.EnergyHartree || got.DipoleAU != want.DipoleAU {
+		t.Errorf("reference point not taken over")
 	}
 }

@@ -6,7 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
+	"sync"
 
 	"poise/energy/basis"
 	"poise/energy/dispersion"
@@ -324,6 +326,42 @@ type runner struct {
 	traj  bytes.Buffer
 	evals int
 	steps int
+	// last is the latest evaluation of the current relaxation (with the
+	// dipole), which the Hessian at the relaxed geometry takes as its
+	// reference point instead of evaluating it again.
+	last *recordedPoint
+}
+
+// recordedPoint is one evaluation: where, and what it gave.
+type recordedPoint struct {
+	x []float64
+	p gradient.Point
+}
+
+// recorder is a surface that asks every evaluation that replaces the warm
+// start for the dipole too (a cheap one-electron property) and keeps the
+// latest one.
+type recorder struct {
+	gradient.Surface
+	mu   sync.Mutex
+	last *recordedPoint
+}
+
+func (c *recorder) Evaluate(ctx context.Context, x []float64, req gradient.Request, out *gradient.Point) error {
+	if req.KeepWarmStart {
+		return c.Surface.Evaluate(ctx, x, req, out)
+	}
+	req.Dipole = true
+	err := c.Surface.Evaluate(ctx, x, req, out)
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	c.last = nil
+	if err == nil && req.Gradient {
+		p := *out
+		p.Gradient = append([]float64(nil), out.Gradient...)
+		c.last = &recordedPoint{x: append([]float64(nil), x...), p: p}
+	}
+	return err
 }
 
 func (r *runner) log(format string, a ...any) {
@@ -353,6 +391,7 @@ func (r *runner) surface(l Level, tight bool) (gradient.Surface, error) {
 // With a work directory, every accepted step is saved under stage, and a
 // relaxation finished or begun by an earlier run is taken up from there.
 func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, crit string, what, stage string, init *optimize.InternalHessian) ([]float64, float64, *optimize.InternalHessian, error) {
+	r.last = nil
 	c, err := optimize.Convergence(crit)
 	if err != nil {
 		return nil, 0, nil, err
@@ -379,7 +418,8 @@ func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, cri
 	frame := r.mol.Clone()
 	before := s.Evaluations()
 	var saveErr error
-	res, err := optimize.Relax(ctx, s, z, x, optimize.Options{Criteria: c, MaxSteps: r.opts.MaxSteps, Threads: r.lvl.SCF.Threads,
+	rec := &recorder{Surface: s}
+	res, err := optimize.Relax(ctx, rec, z, x, optimize.Options{Criteria: c, MaxSteps: r.opts.MaxSteps, Threads: r.lvl.SCF.Threads,
 		InitialHessian: init,
 		Progress: func(st optimize.Step) {
 			if st.Rejected || (resumeStep && st.Number == 0) {
@@ -401,6 +441,10 @@ func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, cri
 	if saveErr != nil {
 		return nil, 0, nil, saveErr
 	}
+	r.last = nil
+	if l := rec.last; l != nil && slices.Equal(l.x, res.XBohr) {
+		r.last = l
+	}
 	steps := prevSteps + res.Steps
 	r.steps += steps
 	r.log("%s: %d steps, energy %.10f Eh", what, steps, res.EnergyHartree)
@@ -418,6 +462,10 @@ func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64, cyc
 	hopts := freq.HessianOptions{StepBohr: r.opts.StepBohr, Dipole: true,
 		Threads: r.lvl.SCF.Threads, Charge: float64(r.mol.Charge), MassesU: masses,
 		WorkDir: r.work.hessianDir(cycle), Tag: "settle " + r.lvl.tag(), DiscardStale: true}
+	if l := r.last; l != nil && slices.Equal(l.x, x) {
+		hopts.Reference = &l.p
+	}
+	r.last = nil
 	if !r.opts.NoSymmetry {
 		hopts.SymmetryKinds = atomicNumbers(r.mol)
 		if as, ok := s.(gradient.AxisSymmetric); ok {
