@@ -53,8 +53,14 @@
 // only when the surface is exactly invariant under the operation
 // (AxisOperationsExact: no DFT grid, or a grid oriented along the
 // coordinate axes, whose Lebedev–Laikov rules are invariant under the
-// octahedral group). Linear molecules use no symmetry. Benzene (D6h)
-// needs 8 displaced points instead of 72, water (C2v) 9 instead of 18.
+// octahedral group). Linear molecules use no symmetry.
+//
+// With HessianOptions.TranslationalInvariance one atom that every
+// operation leaves in place is not displaced: E(x + t) = E(x) for a rigid
+// translation t gives Σ_B H_{iB} = 0, so its columns are minus the sum of
+// all others' (the dipole about the centre of mass likewise). Benzene
+// (D6h) needs 8 displaced points instead of 72, water (C2v) 5 instead of
+// 18, a molecule without symmetry 6N − 6.
 //
 // # Harmonic analysis
 //

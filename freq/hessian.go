@@ -98,6 +98,14 @@ type HessianOptions struct {
 	// it only whole columns are derived, which are central differences
 	// of their own and so cancel any noise of the reference point.
 	AxisOperationsExact bool
+	// TranslationalInvariance lets the Hessian use the invariance of the
+	// energy under a rigid translation, Σ_B ∂²E/∂x_A∂x_B = 0 (and of the
+	// dipole about the centre of mass, or of a neutral molecule's): one
+	// atom that no symmetry operation moves is not displaced, its columns
+	// being minus the sum of the others'. Every molecular surface has this
+	// invariance (a DFT grid moves with the atoms); the derived columns
+	// carry the others' noise, summed.
+	TranslationalInvariance bool
 	// Reference, if set, is the surface's evaluation at x0 (gradient, and
 	// the dipole with Dipole), made with the same settings, and the
 	// surface's warm start is that evaluation's: the Hessian then takes it
@@ -300,7 +308,7 @@ func (l *layout) assemble(h *Hessian, results []storedPoint, opt HessianOptions)
 	grads := make([][]float64, ns)
 	dips := make([][3]float64, ns)
 	for a := 0; a < nat && nat > 1; a++ {
-		if l.rep[a].job != a {
+		if l.rep[a].job != a || a == l.fromTranslation {
 			continue
 		}
 		for c := 3 * a; c < 3*a+3; c++ {
@@ -327,11 +335,12 @@ func (l *layout) assemble(h *Hessian, results []storedPoint, opt HessianOptions)
 		}
 	}
 	// Atoms equivalent to a representative a by the operation (R, π),
+	// then the atom that follows from translational invariance.
 	// b = π(a): H_{π(i) b} = R H_{i a} Rᵀ, and the same for the dipole
 	// derivatives.
 	for b := 0; b < nat && nat > 1; b++ {
 		src := l.rep[b]
-		if src.job == b {
+		if src.job == b || b == l.fromTranslation {
 			continue
 		}
 		a, o := src.job, &l.sym.ops[src.op]
@@ -361,6 +370,25 @@ func (l *layout) assemble(h *Hessian, results []storedPoint, opt HessianOptions)
 		for k := 0; k < 3; k++ {
 			for m := 0; m < 3; m++ {
 				dip[3*(3*b+k)+m] = rot[m][k]
+			}
+		}
+	}
+	if d := l.fromTranslation; d >= 0 {
+		for k := 0; k < 3; k++ {
+			row, drow := raw[(3*d+k)*n:(3*d+k+1)*n], dip[3*(3*d+k):3*(3*d+k)+3]
+			clear(row)
+			clear(drow)
+			for b := 0; b < nat; b++ {
+				if b == d {
+					continue
+				}
+				c := 3*b + k
+				for j := range row {
+					row[j] -= raw[c*n+j]
+				}
+				for m := range drow {
+					drow[m] -= dip[3*c+m]
+				}
 			}
 		}
 	}

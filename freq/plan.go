@@ -68,6 +68,9 @@ type layout struct {
 	// rep[i] is the representative atom of atom i and the operation that
 	// maps it onto i (i itself and 0, the identity, for representatives).
 	rep []pointSource
+	// fromTranslation is the atom whose columns follow from translational
+	// invariance, −1 for none.
+	fromTranslation int
 }
 
 type pointSource struct{ job, op int }
@@ -114,6 +117,7 @@ func newLayout(nat int, x0 []float64, opt *HessianOptions) (*layout, error) {
 		l.rep[i] = pointSource{job: -1}
 	}
 	l.src = make([]pointSource, 3*nat*len(l.steps))
+	// Representatives: the first atom of every set of equivalent atoms.
 	for a := 0; a < nat && nat > 1; a++ {
 		if l.rep[a].job >= 0 {
 			continue
@@ -123,36 +127,82 @@ func newLayout(nat int, x0 []float64, opt *HessianOptions) (*layout, error) {
 				l.rep[b] = pointSource{job: a, op: g}
 			}
 		}
-		first := len(l.jobs)
-		for k := 0; k < 3; k++ {
-			for t, s := range l.steps {
-				c := 3*a + k
-				src := pointSource{job: -1}
-				if opt.AxisOperationsExact {
-				search:
-					for g := range ops {
-						o := &ops[g]
-						if g == 0 || o.perm[a] != a || !o.axisOp() {
-							continue
-						}
-						for j := first; j < len(l.jobs); j++ {
-							kk, sign := o.image(l.jobs[j].Coordinate - 3*a)
-							if kk == k && sign*l.jobs[j].Steps == s {
-								src = pointSource{job: j, op: g}
-								break search
-							}
-						}
-					}
-				}
-				if src.job < 0 {
-					src = pointSource{job: len(l.jobs)}
-					l.jobs = append(l.jobs, Displacement{Coordinate: c, Steps: s})
-				}
-				l.src[c*len(l.steps)+t] = src
+	}
+	// With translational invariance one atom that no operation moves (the
+	// one that needs the most points) is not displaced at all.
+	l.fromTranslation = -1
+	if opt.TranslationalInvariance && nat > 1 {
+		most := 0
+		for a := 0; a < nat; a++ {
+			if l.rep[a].job != a || !l.fixedByAll(a) {
+				continue
+			}
+			if d, _ := l.atomPoints(a, opt.AxisOperationsExact); len(d) > most {
+				most, l.fromTranslation = len(d), a
 			}
 		}
 	}
+	for a := 0; a < nat && nat > 1; a++ {
+		if l.rep[a].job != a || a == l.fromTranslation {
+			continue
+		}
+		d, src := l.atomPoints(a, opt.AxisOperationsExact)
+		first := len(l.jobs)
+		l.jobs = append(l.jobs, d...)
+		for t, p := range src {
+			l.src[3*a*len(l.steps)+t] = pointSource{job: first + p.job, op: p.op}
+		}
+	}
 	return l, nil
+}
+
+// fixedByAll reports whether every operation leaves atom a in place.
+func (l *layout) fixedByAll(a int) bool {
+	for _, o := range l.sym.ops {
+		if o.perm[a] != a {
+			return false
+		}
+	}
+	return true
+}
+
+// atomPoints returns the displaced points of atom a that must be evaluated
+// and, for each of its coordinates k and steps t (index 3·len(steps)
+// scaled: k·len(steps)+t), the point (index into the returned list) and
+// the operation whose image it is. With exact axis operations, a point
+// that is the image of an earlier one of the same atom under an
+// operation leaving a in place is not evaluated.
+func (l *layout) atomPoints(a int, exact bool) ([]Displacement, []pointSource) {
+	ops := l.sym.ops
+	var pts []Displacement
+	src := make([]pointSource, 3*len(l.steps))
+	for k := 0; k < 3; k++ {
+		for t, s := range l.steps {
+			found := pointSource{job: -1}
+			if exact {
+			search:
+				for g := range ops {
+					o := &ops[g]
+					if g == 0 || o.perm[a] != a || !o.axisOp() {
+						continue
+					}
+					for j, p := range pts {
+						kk, sign := o.image(p.Coordinate - 3*a)
+						if kk == k && sign*p.Steps == s {
+							found = pointSource{job: j, op: g}
+							break search
+						}
+					}
+				}
+			}
+			if found.job < 0 {
+				found = pointSource{job: len(pts)}
+				pts = append(pts, Displacement{Coordinate: 3*a + k, Steps: s})
+			}
+			src[k*len(l.steps)+t] = found
+		}
+	}
+	return pts, src
 }
 
 // symmetryKinds returns the kinds of the atoms for the symmetry search

@@ -212,10 +212,14 @@ func TestSymmetrize(t *testing.T) {
 // derivatives of the model.
 func TestSymmetryHessianModel(t *testing.T) {
 	for _, c := range symCases() {
-		for _, exact := range []bool{false, true} {
+		for _, v := range []struct{ exact, trans bool }{{false, false}, {true, false}, {true, true}} {
+			exact := v.exact
 			name := c.name
 			if exact {
 				name += ", axis operations exact"
+			}
+			if v.trans {
+				name += ", translational invariance"
 			}
 			t.Run(name, func(t *testing.T) {
 				p := symModel(c.kinds, c.x)
@@ -225,7 +229,7 @@ func TestSymmetryHessianModel(t *testing.T) {
 					t.Fatal(err)
 				}
 				p.evals.Store(0)
-				sym, err := ComputeHessian(ctx, p, c.x, HessianOptions{Dipole: true, SymmetryKinds: c.kinds, AxisOperationsExact: exact})
+				sym, err := ComputeHessian(ctx, p, c.x, HessianOptions{Dipole: true, SymmetryKinds: c.kinds, AxisOperationsExact: exact, TranslationalInvariance: v.trans})
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -233,7 +237,7 @@ func TestSymmetryHessianModel(t *testing.T) {
 				if sym.SymmetryOperations != c.order {
 					t.Errorf("%d operations used, want %d", sym.SymmetryOperations, c.order)
 				}
-				if c.order > 1 && sym.Displacements >= full.Displacements {
+				if (c.order > 1 || v.trans) && sym.Displacements >= full.Displacements {
 					t.Errorf("%d displaced points with symmetry, %d without", sym.Displacements, full.Displacements)
 				}
 				if got := p.Evaluations(); got != sym.Displacements+1 {
@@ -278,23 +282,24 @@ func TestSymmetryHessianModel(t *testing.T) {
 // TestSymmetryPointCounts checks the number of displaced points for water
 // in the yz plane with its C2 axis along z: the oxygen (on every element)
 // needs +x, +y, ±z; each hydrogen +x, ±y, ±z, and only one hydrogen is
-// displaced.
+// displaced; with translational invariance the oxygen is not displaced.
 func TestSymmetryPointCounts(t *testing.T) {
 	_, x := waterModel()
 	kinds := []int{8, 1, 1}
 	for _, c := range []struct {
-		exact     bool
-		fourPoint bool
-		want      int
+		exact, fourPoint, trans bool
+		want                    int
 	}{
-		{false, false, 12}, {true, false, 9}, {true, true, 18},
+		{false, false, false, 12}, {true, false, false, 9}, {true, true, false, 18},
+		// The oxygen, moved by no operation, follows from the hydrogens.
+		{true, false, true, 5}, {false, false, true, 6},
 	} {
-		pts, err := PlanPoints(3, x, HessianOptions{SymmetryKinds: kinds, AxisOperationsExact: c.exact, FourPoint: c.fourPoint})
+		pts, err := PlanPoints(3, x, HessianOptions{SymmetryKinds: kinds, AxisOperationsExact: c.exact, FourPoint: c.fourPoint, TranslationalInvariance: c.trans})
 		if err != nil {
 			t.Fatal(err)
 		}
 		if len(pts.Displacements) != c.want {
-			t.Errorf("exact %v, four-point %v: %d points %v, want %d", c.exact, c.fourPoint, len(pts.Displacements), pts.Displacements, c.want)
+			t.Errorf("exact %v, four-point %v, translations %v: %d points %v, want %d", c.exact, c.fourPoint, c.trans, len(pts.Displacements), pts.Displacements, c.want)
 		}
 	}
 }

@@ -148,7 +148,8 @@ type Options struct {
 	Log func(string)
 	// NoSymmetry evaluates every displaced point of the Hessians; by
 	// default only those that are not images of others under the
-	// molecule's point group are (freq.HessianOptions.SymmetryKinds).
+	// molecule's point group are (freq.HessianOptions.SymmetryKinds), and
+	// one atom follows from translational invariance.
 	NoSymmetry bool
 	// WorkDir, if set, keeps every finished relaxation step and displaced
 	// point, so that a run stopped at any moment continues there when
@@ -468,6 +469,7 @@ func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64, cyc
 	r.last = nil
 	if !r.opts.NoSymmetry {
 		hopts.SymmetryKinds = atomicNumbers(r.mol)
+		hopts.TranslationalInvariance = true
 		if as, ok := s.(gradient.AxisSymmetric); ok {
 			hopts.AxisOperationsExact = as.AxisOperationsExact()
 		}

@@ -76,7 +76,9 @@ coordinates it moves most. Translations and rotations are projected out (3N−6 
 Symmetry: when the structure has a point group (within 0.001 bohr; it is then made exactly
 symmetric), only one atom of each set of equivalent atoms is displaced and the Hessian
 columns of the others are its rotated images (benzene: 8 displaced points instead of 72);
---no-symmetry displaces every atom.
+one atom that no operation moves is not displaced at all, its columns following from the
+invariance of the energy under translations (water: 5 points instead of 18). --no-symmetry
+displaces every atom.
 
 The structure should be a minimum relaxed tightly (poise relax --converge strict); a
 warning says so when the gradient norm, translations and rotations removed, exceeds
@@ -120,7 +122,7 @@ with DIR/resubmit.sbatch for just those (exit status 5). 'poise task --help' tel
 	fl.StringVar(&f.masses, "mass", "", "masses ATOM=U in u, comma-separated, atoms from 1 (e.g. 2=2.0141)")
 	fl.Float64Var(&f.step, "step", freq.DefaultStepBohr, "finite-difference displacement in bohr")
 	fl.BoolVar(&f.fourPoint, "four-point", false, "fourth-order differences (±step, ±2·step; twice the gradients)")
-	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point (by default those that are images of others under the point group are skipped)")
+	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point (by default images of others under the point group, and one atom by translational invariance, are skipped)")
 	fl.IntVar(&f.concurrent, "concurrent", 0, "displaced points computed at once, sharing --threads (default: one per thread)")
 	fl.Float64Var(&f.fwhm, "fwhm", defaultFWHMCm1, "Lorentzian full width at half maximum of the IR picture, cm⁻¹")
 	fl.StringVar(&f.plan, "plan", "", "compute the reference point, write every displaced point as a task into DIR for a batch system, with a Slurm job-array script; nothing else is computed")
@@ -362,6 +364,7 @@ func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmet
 			hopts.SymmetryKinds[i] = a.Z
 		}
 		hopts.AxisOperationsExact = surf.AxisOperationsExact()
+		hopts.TranslationalInvariance = true
 	}
 	return &modesCalc{s: s, conv: conv, surf: surf, x0: gradient.Coordinates(s.mol), masses: masses, hopts: hopts}, nil
 }

@@ -57,7 +57,11 @@ func modesJSON(t *testing.T, args ...string) *freq.File {
 // sameModes compares an assembled result with the single-process one:
 // frequencies to 0.01 cm⁻¹, Hessian to 1e-7 Eh/bohr² (the issue's
 // tolerances; the same displacements and SCF settings make them equal).
-func sameModes(t *testing.T, got, want *freq.File) {
+func sameModes(t *testing.T, got, want *freq.File) { sameModesWithin(t, got, want, 1e-7) }
+
+// sameModesWithin is sameModes with the Hessians compared to tolH
+// (Eh/bohr²).
+func sameModesWithin(t *testing.T, got, want *freq.File, tolH float64) {
 	t.Helper()
 	if len(got.FrequenciesCm1) != len(want.FrequenciesCm1) || len(got.HessianAU) != len(want.HessianAU) {
 		t.Fatalf("assembled: %d modes, %d Hessian rows; single process %d, %d", len(got.FrequenciesCm1), len(got.HessianAU), len(want.FrequenciesCm1), len(want.HessianAU))
@@ -73,7 +77,7 @@ func sameModes(t *testing.T, got, want *freq.File) {
 			worst = math.Max(worst, math.Abs(got.HessianAU[i][j]-want.HessianAU[i][j]))
 		}
 	}
-	if worst > 1e-7 {
+	if worst > tolH {
 		t.Errorf("Hessians differ by up to %.2e Eh/bohr²", worst)
 	}
 	t.Logf("assembled vs single process: Hessian max |ΔH| %.1e Eh/bohr²", worst)
@@ -86,33 +90,34 @@ func TestModesPlanLocal(t *testing.T) {
 	level := []string{"--method", "hf", "--basis", "3-21g"}
 	dir := filepath.Join(t.TempDir(), "plan")
 	out, errOut, code, _ := execCLI(t, false, append([]string{"modes", modesWaterXYZ, "--plan", dir, "--threads", "1",
-		"--max-array", "7", "--sbatch=--partition=short"}, level...)...)
+		"--max-array", "3", "--sbatch=--partition=short"}, level...)...)
 	if code != exitOK {
 		t.Fatalf("plan: exit %d\n%s\n%s", code, out, errOut)
 	}
 	if !strings.Contains(out, "sbatch ") || !strings.Contains(out, "poise modes --assemble") {
 		t.Errorf("plan output lacks the commands:\n%s", out)
 	}
-	// Water in the yz plane, C2v: 9 symmetry-unique displaced points (O:
-	// +x, +y, ±z; one H: +x, ±y, ±z), at most 7 per array: two scripts.
+	// Water in the yz plane, C2v: 5 displaced points (one H: +x, ±y, ±z;
+	// the other H by symmetry, O by translational invariance), at most 3
+	// per array: two scripts.
 	scripts, _ := filepath.Glob(filepath.Join(dir, "submit-*.sbatch"))
 	if len(scripts) != 2 {
-		t.Fatalf("%d scripts for 9 tasks of at most 7: %v", len(scripts), scripts)
+		t.Fatalf("%d scripts for 5 tasks of at most 3: %v", len(scripts), scripts)
 	}
 	s2, _ := os.ReadFile(filepath.Join(dir, "submit-2.sbatch"))
-	for _, want := range []string{"#SBATCH --array=0-1\n", "#SBATCH --cpus-per-task=1\n", "#SBATCH --partition=short\n", "index=$((SLURM_ARRAY_TASK_ID + 7))", "task run "} {
+	for _, want := range []string{"#SBATCH --array=0-1\n", "#SBATCH --cpus-per-task=1\n", "#SBATCH --partition=short\n", "index=$((SLURM_ARRAY_TASK_ID + 3))", "task run "} {
 		if !strings.Contains(string(s2), want) {
 			t.Errorf("submit-2.sbatch lacks %q:\n%s", want, s2)
 		}
 	}
-	for _, f := range []string{"plan.json", "input.xyz", "reference-state.json", "tasks/0000.json", "tasks/0008.json", "displacements/reference.json"} {
+	for _, f := range []string{"plan.json", "input.xyz", "reference-state.json", "tasks/0000.json", "tasks/0004.json", "displacements/reference.json"} {
 		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
 			t.Errorf("plan directory: %v", err)
 		}
 	}
 	// Assembling before the tasks: every task is listed, exit status 5.
 	_, errOut, code, _ = execCLI(t, false, "modes", "--assemble", dir)
-	if code != exitPlanOpen || !strings.Contains(errOut, "9 of 9 tasks") {
+	if code != exitPlanOpen || !strings.Contains(errOut, "5 of 5 tasks") {
 		t.Errorf("early assemble: exit %d\n%s", code, errOut)
 	}
 	out, errOut, code, _ = execCLI(t, false, "task", "run-all", dir, "--jobs", "2", "--threads", "2", "--json")
@@ -120,21 +125,25 @@ func TestModesPlanLocal(t *testing.T) {
 		t.Fatalf("run-all: exit %d\n%s\n%s", code, out, errOut)
 	}
 	var sum runAllSummary
-	if err := json.Unmarshal([]byte(out), &sum); err != nil || len(sum.Computed) != 9 || len(sum.Skipped) != 0 {
+	if err := json.Unmarshal([]byte(out), &sum); err != nil || len(sum.Computed) != 5 || len(sum.Skipped) != 0 {
 		t.Fatalf("run-all: %+v, %v", sum, err)
 	}
 	got := modesJSON(t, "modes", "--assemble", dir, "--json")
-	if c := got.Computation; c == nil || c.Gradients != 0 || c.Reused != 9 || c.SymmetryOperations != 4 {
+	if c := got.Computation; c == nil || c.Gradients != 0 || c.Reused != 5 || c.SymmetryOperations != 4 {
 		t.Errorf("assembling computed something, or without symmetry: %+v", got.Computation)
 	}
 	want := modesJSON(t, append([]string{"modes", modesWaterXYZ, "--threads", "2", "--out", t.TempDir(), "--json"}, level...)...)
 	sameModes(t, got, want)
-	// Every point computed: the same Hessian (HF has the symmetry exactly).
+	// Every point computed: the same frequencies. The oxygen's columns,
+	// minus the sum of the hydrogens', differ from its own central
+	// differences by their truncation error, h²/6·∂⁴E/∂x⁴ ≈ 1e-6 Eh/bohr²
+	// with h = 0.0025 bohr (HF has the symmetry and the translational
+	// invariance exactly).
 	full := modesJSON(t, append([]string{"modes", modesWaterXYZ, "--threads", "2", "--out", t.TempDir(), "--json", "--no-symmetry"}, level...)...)
 	if c := full.Computation; c == nil || c.Displacements != 18 {
 		t.Errorf("--no-symmetry: %+v", full.Computation)
 	}
-	sameModes(t, got, full)
+	sameModesWithin(t, got, full, 1e-5)
 	if _, err := os.Stat(filepath.Join(dir, "water.modes.json")); err != nil {
 		t.Errorf("assemble writes into the plan directory: %v", err)
 	}
