@@ -47,6 +47,11 @@
 //     transfer, which loses accuracy for separated high-l shells). Any l up
 //     to 10 (spherical) or beyond (Cartesian); computed serially, their cost
 //     being negligible next to the electron repulsion.
+//   - Distance-dependent bounds on electron-repulsion integrals
+//     (PairCharges, FarFieldBound; chargebound.go): Newton's theorem applied
+//     to spherical bounds of the primitive products, a rigorous form of the
+//     far-field estimate of S. A. Maurer, D. S. Lambrecht, D. Flaig and
+//     C. Ochsenfeld, J. Chem. Phys. 136, 144107 (2012).
 //   - Electron-repulsion integrals and derivatives: see eri.go and deriv.go;
 //     the derivative classes with l ≤ 2 per centre (total l ≤ 6) are
 //     generated straight-line code (deriv_gen.go, go generate).

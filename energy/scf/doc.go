@@ -11,7 +11,12 @@
 //     virtual-orbital level shift when DIIS stalls (Saunders & Hillier 1973);
 //   - Coulomb and exchange matrices from electron-repulsion integrals with
 //     8-fold permutational symmetry and Schwarz screening (Häser & Ahlrichs
-//     1989), kept in memory when they fit the budget, else recomputed
+//     1989) together with a rigorous distance-dependent far-field bound
+//     (integral.FarFieldBound, after the QQR idea of Maurer, Lambrecht, Flaig
+//     & Ochsenfeld, J. Chem. Phys. 136, 144107 (2012)); the Coulomb matrix is
+//     accumulated in a packed shell-pair layout so that the ket side of a
+//     bra pair's quartets reads contiguous memory. Integrals are
+//     kept in memory when they fit the budget, else recomputed
 //     (integral-direct). Work is cut into fixed chunks of shell quartets whose
 //     partial sums are added in chunk order, so results do not depend on the
 //     number of threads.

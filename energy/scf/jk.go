@@ -13,8 +13,11 @@ import (
 
 // schwarzThreshold is the screening threshold on the Cauchy–Schwarz bound
 // |(ij|kl)| ≤ Q_ij·Q_kl below which a shell quartet is skipped (Häser &
-// Ahlrichs, J. Comput. Chem. 10, 104 (1989)). It is fixed, not density
-// dependent, so that in-core and direct builds store the same quartets.
+// Ahlrichs, J. Comput. Chem. 10, 104 (1989)). A quartet is also skipped
+// when the rigorous far-field bound integral.FarFieldBound, which falls
+// off with the distance of the two charge distributions, is below it. Both
+// bounds are fixed, not density dependent, so that in-core and direct
+// builds store the same quartets.
 const schwarzThreshold = 1e-12
 
 // densityThreshold is the density-weighted screening threshold of one
@@ -25,6 +28,14 @@ const schwarzThreshold = 1e-12
 // (Häser & Ahlrichs, J. Comput. Chem. 10, 104 (1989), eq. 10). Each skipped
 // contraction changes a Fock element by less than 4·densityThreshold.
 const densityThreshold = 1e-12
+
+// farFieldRange: the far-field bound (integral.FarFieldBound) is
+// evaluated for quartets whose Schwarz bound is below farFieldRange times
+// schwarzThreshold. Above that it could not drop a quartet in practice
+// (its ratio to the Schwarz bound is about 1/(R·ζ^{1/2}) for diffuse pairs
+// R bohr apart), and skipping it keeps the screening cheap. The choice
+// affects only how many quartets are dropped, never the rigour.
+const farFieldRange = 1e4
 
 // Work chunks: the canonical quartets are cut, in their fixed order, into
 // chunks of about equal work (integral count), at least minQuartetsPerChunk
@@ -59,8 +70,16 @@ type jkBuilder struct {
 	n       int // basis functions
 	threads int
 
-	// quartets lists the canonical shell quartets that survive screening:
-	// i ≥ j, k ≥ l, (ij) ≥ (kl), stored as four int32 per quartet.
+	// pairs lists the significant shell pairs i ≥ j (two int32 each) in
+	// canonical order; pairOff[p] is the start of pair p's block of
+	// ni·nj elements in the packed pair arrays, pairOff[len] their length.
+	pairs   []int32
+	pairOff []int
+	nf      []int // functions per shell
+
+	// quartets lists the canonical shell quartets that survive screening,
+	// as pair indices p ≥ r (bra pair p = (i, j), ket pair r = (k, l)),
+	// two int32 per quartet, in the order of p, then r.
 	quartets []int32
 	chunks   []int // start index (in quartets) of every chunk, plus the end
 
@@ -88,7 +107,10 @@ type jkBuilder struct {
 	exact bool
 }
 
-// jkBuffers are the Coulomb and exchange accumulators of one chunk.
+// jkBuffers are the Coulomb and exchange accumulators of one chunk. The
+// Coulomb matrix is accumulated in the packed pair layout (jk.pairOff):
+// the ket side of the quartets of one bra pair then streams through
+// contiguous memory instead of scattered rows of an n×n matrix.
 type jkBuffers struct {
 	j []float64
 	k [][]float64
@@ -102,6 +124,12 @@ func newJKBuilder(ctx context.Context, b *integral.Basis, threads int, memoryByt
 
 // newJKBuilderLog is newJKBuilder with a receiver of notices (nil: none).
 func newJKBuilderLog(ctx context.Context, b *integral.Basis, threads int, memoryBytes int64, log func(string)) (*jkBuilder, error) {
+	return newJKBuilderScreen(ctx, b, threads, memoryBytes, log, true)
+}
+
+// newJKBuilderScreen is newJKBuilderLog with the far-field bound switched
+// on or off (off: Schwarz screening alone, for tests).
+func newJKBuilderScreen(ctx context.Context, b *integral.Basis, threads int, memoryBytes int64, log func(string), farField bool) (*jkBuilder, error) {
 	if threads < 1 {
 		threads = runtime.GOMAXPROCS(0)
 	}
@@ -113,7 +141,11 @@ func newJKBuilderLog(ctx context.Context, b *integral.Basis, threads int, memory
 	}
 	q := eri.SchwarzMatrix()
 	jk.schwarz = q
-	nf := func(s int) int { return b.Shells[s].NumFunctions() }
+	jk.nf = make([]int, ns)
+	for s := range jk.nf {
+		jk.nf[s] = b.Shells[s].NumFunctions()
+	}
+	nf := jk.nf
 	// Significant shell pairs i ≥ j in canonical order (index i(i+1)/2+j):
 	// a pair whose bound times the largest bound is below the threshold
 	// takes part in no quartet.
@@ -121,39 +153,57 @@ func newJKBuilderLog(ctx context.Context, b *integral.Basis, threads int, memory
 	for _, v := range q {
 		qmax = max(qmax, v)
 	}
-	var pairs []int32 // i, j per pair
 	var pairQ []float64
+	jk.pairOff = []int{0}
 	for i := 0; i < ns; i++ {
 		for j := 0; j <= i; j++ {
 			if qij := q[i*ns+j]; qij*qmax >= schwarzThreshold {
-				pairs = append(pairs, int32(i), int32(j))
+				jk.pairs = append(jk.pairs, int32(i), int32(j))
 				pairQ = append(pairQ, qij)
+				jk.pairOff = append(jk.pairOff, jk.pairOff[len(jk.pairOff)-1]+nf[i]*nf[j])
 			}
 		}
+	}
+	// Distance-dependent bounds of the pairs (far-field bound, see
+	// integral.FarFieldBound): a quartet survives when both the Schwarz
+	// and the far-field bound reach the threshold. The far-field bound is
+	// only evaluated where it can matter, for Schwarz products below
+	// farFieldRange times the threshold.
+	allCharges := eri.PairCharges()
+	charges := make([]integral.PairCharge, len(pairQ))
+	for p := range charges {
+		i, j := int(jk.pairs[2*p]), int(jk.pairs[2*p+1])
+		charges[p] = allCharges[i*(i+1)/2+j]
+	}
+	keep := func(p, r int) bool {
+		s := pairQ[p] * pairQ[r]
+		if s < schwarzThreshold {
+			return false
+		}
+		return !farField || s >= farFieldRange*schwarzThreshold ||
+			integral.FarFieldBound(&charges[p], &charges[r]) >= schwarzThreshold
 	}
 	// Canonical quartets (ij) ≥ (kl) that survive screening, in the order
 	// of (ij), then (kl).
 	count := 0
 	for p := range pairQ {
 		for r := 0; r <= p; r++ {
-			if pairQ[p]*pairQ[r] >= schwarzThreshold {
+			if keep(p, r) {
 				count++
 			}
 		}
 	}
-	jk.quartets = make([]int32, 0, 4*count)
+	jk.quartets = make([]int32, 0, 2*count)
 	weights := make([]int64, 0, count) // integrals per quartet, to cut chunks of equal work
 	var storeWords int64
 	for p := range pairQ {
-		i, j := pairs[2*p], pairs[2*p+1]
-		nij := nf(int(i)) * nf(int(j))
+		nij := jk.pairOff[p+1] - jk.pairOff[p]
 		for r := 0; r <= p; r++ {
-			if pairQ[p]*pairQ[r] < schwarzThreshold {
+			if !keep(p, r) {
 				continue
 			}
-			k, l := pairs[2*r], pairs[2*r+1]
-			jk.quartets = append(jk.quartets, i, j, k, l)
-			w := int64(nij * nf(int(k)) * nf(int(l)))
+			jk.quartets = append(jk.quartets, int32(p), int32(r))
+			w := int64(nij * (jk.pairOff[r+1] - jk.pairOff[r]))
 			weights = append(weights, w)
 			storeWords += w
 		}
@@ -206,21 +256,59 @@ func cutChunks(weights []int64, total int64) []int {
 // InCore reports whether the integrals are kept in memory.
 func (jk *jkBuilder) InCore() bool { return jk.incore != nil }
 
+// quartetShells returns the shells i, j, k, l of quartet q.
+func (jk *jkBuilder) quartetShells(q int) (i, j, k, l int) {
+	p, r := jk.quartets[2*q], jk.quartets[2*q+1]
+	return int(jk.pairs[2*p]), int(jk.pairs[2*p+1]), int(jk.pairs[2*r]), int(jk.pairs[2*r+1])
+}
+
+// packPairs copies the shell-pair blocks of the n×n matrix m into the
+// packed pair layout.
+func (jk *jkBuilder) packPairs(m []float64) []float64 {
+	n := jk.n
+	out := make([]float64, jk.pairOff[len(jk.pairOff)-1])
+	for p := 0; p < len(jk.pairOff)-1; p++ {
+		i, j := jk.pairs[2*p], jk.pairs[2*p+1]
+		oi, oj, nj := jk.b.Offsets[i], jk.b.Offsets[j], jk.nf[j]
+		blk := out[jk.pairOff[p]:jk.pairOff[p+1]]
+		for a := 0; a < jk.nf[i]; a++ {
+			copy(blk[a*nj:(a+1)*nj], m[(oi+a)*n+oj:(oi+a)*n+oj+nj])
+		}
+	}
+	return out
+}
+
+// unpackPairs adds the packed pair blocks to the n×n matrix m.
+func (jk *jkBuilder) unpackPairs(packed, m []float64) {
+	n := jk.n
+	for p := 0; p < len(jk.pairOff)-1; p++ {
+		i, j := jk.pairs[2*p], jk.pairs[2*p+1]
+		oi, oj, nj := jk.b.Offsets[i], jk.b.Offsets[j], jk.nf[j]
+		blk := packed[jk.pairOff[p]:jk.pairOff[p+1]]
+		for a := 0; a < jk.nf[i]; a++ {
+			row := m[(oi+a)*n+oj : (oi+a)*n+oj+nj]
+			for b, v := range blk[a*nj : (a+1)*nj] {
+				row[b] += v
+			}
+		}
+	}
+}
+
 func (jk *jkBuilder) fillInCore(ctx context.Context, words int64) error {
-	nq := len(jk.quartets) / 4
+	nq := len(jk.quartets) / 2
 	jk.offsets = make([]int, nq+1)
 	off := 0
 	for q := 0; q < nq; q++ {
 		jk.offsets[q] = off
-		i, j, k, l := jk.quartets[4*q], jk.quartets[4*q+1], jk.quartets[4*q+2], jk.quartets[4*q+3]
-		off += jk.b.Shells[i].NumFunctions() * jk.b.Shells[j].NumFunctions() * jk.b.Shells[k].NumFunctions() * jk.b.Shells[l].NumFunctions()
+		p, r := jk.quartets[2*q], jk.quartets[2*q+1]
+		off += (jk.pairOff[p+1] - jk.pairOff[p]) * (jk.pairOff[r+1] - jk.pairOff[r])
 	}
 	jk.offsets[nq] = off
 	store := make([]float64, words)
 	err := jk.parallelChunks(ctx, func(w *integral.ERIWorkspace, c int) {
 		for q := jk.chunks[c]; q < jk.chunks[c+1]; q++ {
-			i, j, k, l := jk.quartets[4*q], jk.quartets[4*q+1], jk.quartets[4*q+2], jk.quartets[4*q+3]
-			v := jk.eri.Quartet(w, int(i), int(j), int(k), int(l))
+			i, j, k, l := jk.quartetShells(q)
+			v := jk.eri.Quartet(w, i, j, k, l)
 			copy(store[jk.offsets[q]:jk.offsets[q+1]], v)
 		}
 	})
@@ -344,12 +432,14 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 		nk = nd
 	}
 	dmax := jk.pairMax(dtot, dens[:nk])
+	dpair := jk.packPairs(dtot)
+	np := len(dpair)
 	// One buffer set per chunk in flight; chunks are reduced in index order.
 	nc := len(jk.chunks) - 1
 	// Chunks in flight at once: as many buffer sets as fit in
 	// waveBytes (at least 2·threads), so that workers rarely wait for the
 	// in-order reduction. The grouping never changes the result.
-	wave := max(2*jk.threads, int(jk.waveBytes/int64(8*n*n*(1+nk))))
+	wave := max(2*jk.threads, int(jk.waveBytes/int64(8*(np+n*n*nk)+8)))
 	if wave > nc {
 		wave = nc
 	}
@@ -358,7 +448,7 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 	if len(jk.pool) < wave || (len(jk.pool) > 0 && len(jk.pool[0].k) != nk) {
 		jk.pool = make([]jkBuffers, wave)
 		for i := range jk.pool {
-			jk.pool[i].j = make([]float64, n*n)
+			jk.pool[i].j = make([]float64, np)
 			jk.pool[i].k = make([][]float64, nk)
 			for s := range jk.pool[i].k {
 				jk.pool[i].k[s] = make([]float64, n*n)
@@ -366,7 +456,7 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 		}
 	}
 	pool := jk.pool
-	J = make([]float64, n*n)
+	Jp := make([]float64, np)
 	K = make([][]float64, nk)
 	for s := range K {
 		K[s] = make([]float64, n*n)
@@ -404,7 +494,7 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 					for _, k := range bf.k {
 						clear(k)
 					}
-					jk.contractChunk(w, c, dtot, dens[:nk], dmax, bf.j, bf.k)
+					jk.contractChunk(w, c, dpair, dens[:nk], dmax, bf.j, bf.k)
 				}
 			}()
 		}
@@ -413,12 +503,17 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 			return nil, nil, err
 		}
 		// Reduce in chunk order, the elements split among the threads.
-		jk.parallelRange(n*n, func(lo, hi int) {
+		jk.parallelRange(np, func(lo, hi int) {
 			for c := start; c < end; c++ {
 				bf := &pool[c-start]
 				for i, v := range bf.j[lo:hi] {
-					J[lo+i] += v
+					Jp[lo+i] += v
 				}
+			}
+		})
+		jk.parallelRange(n*n, func(lo, hi int) {
+			for c := start; c < end; c++ {
+				bf := &pool[c-start]
 				for s := range bf.k {
 					ks := K[s][lo:hi]
 					for i, v := range bf.k[s][lo:hi] {
@@ -428,6 +523,8 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 			}
 		})
 	}
+	J = make([]float64, n*n)
+	jk.unpackPairs(Jp, J)
 	symmetrize(J, n)
 	for s := range K {
 		symmetrize(K[s], n)
@@ -492,17 +589,20 @@ func symmetrize(m []float64, n int) {
 }
 
 // contractChunk adds the contributions of one chunk of unique quartets to
-// j and k. Each unique integral v of degeneracy s (the number of distinct
-// index permutations it stands for) adds s/2·v·D to two Coulomb elements and
-// s/4·v·D to four exchange elements; symmetrizing the sums afterwards gives
-// J and K exactly (the scheme of the libint2 Hartree–Fock example).
-func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float64, dens [][]float64, dmax []float64, jm []float64, km [][]float64) {
+// jp (Coulomb, packed pair layout, from the packed total density dp) and
+// km (exchange of each density of dens, n×n). Each unique integral v of
+// degeneracy s (the number of distinct index permutations it stands for)
+// adds s/2·v·D to two Coulomb elements and s/4·v·D to four exchange
+// elements; symmetrizing the sums afterwards gives J and K exactly (the
+// scheme of the libint2 Hartree–Fock example).
+func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dp []float64, dens [][]float64, dmax []float64, jp []float64, km [][]float64) {
 	n := jk.n
 	ns := jk.ns
 	offs := jk.b.Offsets
 	wantK := len(dens) > 0
 	for q := jk.chunks[c]; q < jk.chunks[c+1]; q++ {
-		si, sj, sk, sl := int(jk.quartets[4*q]), int(jk.quartets[4*q+1]), int(jk.quartets[4*q+2]), int(jk.quartets[4*q+3])
+		p, r := int(jk.quartets[2*q]), int(jk.quartets[2*q+1])
+		si, sj, sk, sl := int(jk.pairs[2*p]), int(jk.pairs[2*p+1]), int(jk.pairs[2*r]), int(jk.pairs[2*r+1])
 		// Density-weighted screening, separately for the Coulomb and the
 		// exchange contractions: far apart, a quartet often matters for
 		// one of them only.
@@ -528,49 +628,62 @@ func (jk *jkBuilder) contractChunk(w *integral.ERIWorkspace, c int, dtot []float
 		if sk != sl {
 			deg *= 2
 		}
-		if si != sk || sj != sl {
+		if p != r {
 			deg *= 2
 		}
-		ni, nj, nk, nl := jk.b.Shells[si].NumFunctions(), jk.b.Shells[sj].NumFunctions(), jk.b.Shells[sk].NumFunctions(), jk.b.Shells[sl].NumFunctions()
-		oi, oj, ok, ol := offs[si], offs[sj], offs[sk], offs[sl]
+		ni, nj, nk, nl := jk.nf[si], jk.nf[sj], jk.nf[sk], jk.nf[sl]
+		nkl := nk * nl
 		hj := 0.5 * deg
 		hk := 0.25 * deg
-		idx := 0
-		for a := 0; a < ni; a++ {
-			fa := oi + a
-			for b := 0; b < nj; b++ {
-				fb := oj + b
-				dab := dtot[fa*n+fb]
+		if doJ {
+			// Coulomb: J_ij += D_kl·(ij|kl), J_kl += D_ij·(ij|kl), both
+			// blocks contiguous in the packed layout.
+			dij := dp[jk.pairOff[p] : jk.pairOff[p]+ni*nj]
+			jij := jp[jk.pairOff[p] : jk.pairOff[p]+ni*nj]
+			dkl := dp[jk.pairOff[r] : jk.pairOff[r]+nkl]
+			jkl := jp[jk.pairOff[r] : jk.pairOff[r]+nkl]
+			for ab := range dij {
+				row := v[ab*nkl : (ab+1)*nkl]
+				h := hj * dij[ab]
 				var jab float64
-				for cc := 0; cc < nk; cc++ {
-					fc := ok + cc
-					rowC := fc * n
-					for d := 0; d < nl; d++ {
-						fd := ol + d
-						val := v[idx]
-						idx++
-						if val == 0 {
-							continue
-						}
-						if doJ {
-							jab += dtot[rowC+fd] * val
-							jm[rowC+fd] += hj * dab * val
-						}
-						if !doK {
-							continue
-						}
-						for s, ds := range dens {
-							ks := km[s]
-							x := hk * val
-							ks[fa*n+fc] += x * ds[fb*n+fd]
-							ks[fb*n+fd] += x * ds[fa*n+fc]
-							ks[fa*n+fd] += x * ds[fb*n+fc]
-							ks[fb*n+fc] += x * ds[fa*n+fd]
-						}
-					}
+				for x, val := range row {
+					jab += dkl[x] * val
+					jkl[x] += h * val
 				}
-				if doJ {
-					jm[fa*n+fb] += hj * jab
+				jij[ab] += hj * jab
+			}
+		}
+		if !doK {
+			continue
+		}
+		oi, oj, ok, ol := offs[si], offs[sj], offs[sk], offs[sl]
+		for s, ds := range dens {
+			ks := km[s]
+			idx := 0
+			for a := 0; a < ni; a++ {
+				fa := oi + a
+				kA, dA := ks[fa*n:(fa+1)*n], ds[fa*n:(fa+1)*n]
+				kAd, dAd := kA[ol:ol+nl], dA[ol:ol+nl]
+				for b := 0; b < nj; b++ {
+					fb := oj + b
+					kB, dB := ks[fb*n:(fb+1)*n], ds[fb*n:(fb+1)*n]
+					kBd, dBd := kB[ol:ol+nl], dB[ol:ol+nl]
+					for cc := 0; cc < nk; cc++ {
+						fc := ok + cc
+						row := v[idx : idx+nl]
+						idx += nl
+						dAc, dBc := dA[fc], dB[fc]
+						var sA, sB float64
+						for d, val := range row {
+							x := hk * val
+							sA += x * dBd[d]
+							kBd[d] += x * dAc
+							kAd[d] += x * dBc
+							sB += x * dAd[d]
+						}
+						kA[fc] += sA
+						kB[fc] += sB
+					}
 				}
 			}
 		}
