@@ -397,7 +397,7 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		}
 		ib := integral.NewBasis(shells)
 		pot = dft.New(fn, g, ib, threads)
-		pot.CacheBytes = dft.CacheBytesFor(opts.MemoryBytes)
+		pot.CacheBytes = dft.CacheBytesFor(opts.MemoryBytes, ib.NBF)
 		opts.XC = pot
 		if guess == nil {
 			if opts.XCStart, err = StartXC(fn, z, pos, s.cfg.GridLevel, s.frame, ib, threads, pot.CacheBytes); err != nil {

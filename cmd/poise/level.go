@@ -252,7 +252,7 @@ func (s *setup) attachXC(frame *grid.Frame) error {
 	s.grid = g
 	ib := integral.NewBasis(s.shells)
 	pot := dft.New(s.fn, g, ib, s.opts.Threads)
-	pot.CacheBytes = dft.CacheBytesFor(s.memBytes)
+	pot.CacheBytes = dft.CacheBytesFor(s.memBytes, ib.NBF)
 	s.opts.XC = pot
 	if s.opts.XCStart, err = gradient.StartXC(s.fn, z, pos, s.gridLevel, fr, ib, s.opts.Threads, pot.CacheBytes); err != nil {
 		return err

@@ -208,14 +208,31 @@ func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) 
 }
 
 // CacheBytesFor is the share of a run's memory budget that the stored
-// basis-function values may take: a quarter (in-core electron-repulsion
-// integrals take at most half). A budget of 0 (none given) gives 0, which
-// leaves DefaultCacheBytes.
-func CacheBytesFor(memoryBytes int64) int64 {
+// basis-function values of a basis of nbf functions may take: a quarter,
+// plus the part of the in-core electron-repulsion integrals' half that
+// they cannot use — the half less an upper bound on their size for nbf
+// functions (maxERIBytes), when that is positive. Together the two stay
+// within three quarters of the budget. A budget of 0 (none given) gives
+// 0, which leaves DefaultCacheBytes.
+func CacheBytesFor(memoryBytes int64, nbf int) int64 {
 	if memoryBytes <= 0 {
 		return 0
 	}
-	return max(memoryBytes/4, 1)
+	return max(memoryBytes/4+max(memoryBytes/2-maxERIBytes(nbf), 0), 1)
+}
+
+// maxERIBytes bounds the memory of the stored integrals of nbf functions:
+// canonical shell quartets of shell pairs p ≥ r hold w_p·w_r values, with
+// Σ_p w_p ≤ P = (nbf² + 15·nbf)/2 over the pairs i ≥ j (shells of at most
+// 15 functions) and w_p ≤ 225, so at most (P² + 225·P)/2 values of 8 bytes.
+func maxERIBytes(nbf int) int64 {
+	n := float64(nbf)
+	p := (n*n + 15*n) / 2
+	b := 8 * (p*p + 225*p) / 2
+	if b > 1<<62 {
+		return 1 << 62
+	}
+	return int64(b)
 }
 
 // DefaultCacheBytes is the memory budget for stored basis-function values
