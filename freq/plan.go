@@ -25,25 +25,6 @@ type Displacement struct {
 	Steps      int
 }
 
-// Displacements lists every displaced point of a Hessian of nat atoms
-// (coordinate-major; steps +1, −1[, +2, −2]), those ComputeHessian
-// evaluates without symmetry (PlanPoints gives those with). A single atom
-// has none: its Hessian is zero (translations only).
-func Displacements(nat int, fourPoint bool) []Displacement {
-	if nat < 2 {
-		return nil
-	}
-	o := HessianOptions{FourPoint: fourPoint}
-	steps := o.stepList()
-	out := make([]Displacement, 0, 3*nat*len(steps))
-	for i := 0; i < 3*nat; i++ {
-		for _, k := range steps {
-			out = append(out, Displacement{Coordinate: i, Steps: k})
-		}
-	}
-	return out
-}
-
 // FileName is the name of the point's file in the work directory.
 func (d Displacement) FileName() string { return displacementName(d.Coordinate, d.Steps) }
 

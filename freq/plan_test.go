@@ -26,7 +26,11 @@ func TestPiecewiseHessian(t *testing.T) {
 		if done, err := ComputeReference(context.Background(), ref, x, opt); err != nil || done {
 			t.Fatalf("reference again: computed %v (want false), %v", done, err)
 		}
-		disp := Displacements(len(x)/3, four)
+		pts, err := PlanPoints(len(x)/3, x, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		disp := pts.Displacements
 		if want := len(x) * 2; four && len(disp) != 2*want || !four && len(disp) != want {
 			t.Fatalf("%d displacements", len(disp))
 		}
