@@ -439,12 +439,8 @@ func runLadder(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell
 			ad.reset()
 			bestErr, bestAt = math.Inf(1), it
 			rungStart = it + 1
-			for sp := 0; sp < nspin; sp++ {
-				_, vecs, err := eigenSym(transform(p.x, n, m, focks[sp]), m)
-				if err != nil {
-					return nil, err
-				}
-				dens[sp] = densityFromOrbitals(mul(p.x, n, m, vecs, m), n, m, p.occ[sp])
+			if err := p.occupy(dens, focks, false); err != nil {
+				return nil, err
 			}
 			continue
 		}
@@ -493,16 +489,8 @@ func runLadder(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell
 				use = ex
 			}
 		}
-		for sp := 0; sp < nspin; sp++ {
-			fo := transform(p.x, n, m, use[sp])
-			if shift && it > rungStart {
-				applyLevelShift(fo, m, p.x, p.s, dens[sp], n, levelShiftHartree, len(p.occ[sp]))
-			}
-			_, vecs, err := eigenSym(fo, m)
-			if err != nil {
-				return nil, err
-			}
-			dens[sp] = densityFromOrbitals(mul(p.x, n, m, vecs, m), n, m, p.occ[sp])
+		if err := p.occupy(dens, use, shift && it > rungStart); err != nil {
+			return nil, err
 		}
 	}
 	// Final orbitals from the last (unshifted, unextrapolated) Fock matrices.
@@ -515,6 +503,25 @@ func runLadder(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell
 			ErrNotConverged, res.Iterations, res.EnergyHartree, res.FinalGradient, opt.EnergyTolerance, opt.GradientTolerance)
 	}
 	return res, nil
+}
+
+// occupy replaces dens by the densities of the lowest orbitals of the
+// Fock matrices focks (per spin), with the virtual orbitals level-shifted
+// (against the current densities) when shift is set.
+func (p *problem) occupy(dens, focks [][]float64, shift bool) error {
+	n, m := p.n, p.m
+	for sp := range dens {
+		fo := transform(p.x, n, m, focks[sp])
+		if shift {
+			applyLevelShift(fo, m, p.x, p.s, dens[sp], n, levelShiftHartree, len(p.occ[sp]))
+		}
+		_, vecs, err := eigenSym(fo, m)
+		if err != nil {
+			return err
+		}
+		dens[sp] = densityFromOrbitals(mul(p.x, n, m, vecs, m), n, m, p.occ[sp])
+	}
+	return nil
 }
 
 // orbitalGradient returns FDS − SDF in the orthonormal basis for every spin
