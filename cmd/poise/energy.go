@@ -47,6 +47,7 @@ type energyReport struct {
 	BasisFunctions           int          `json:"basis_functions"`
 	DroppedFunctions         int          `json:"dropped_functions"`
 	IntegralsInMemory        bool         `json:"integrals_in_memory"`
+	IntegralsInMemoryPercent float64      `json:"integrals_in_memory_percent"`
 	Threads                  int          `json:"threads"`
 	WallSeconds              float64      `json:"wall_seconds"`
 	Version                  string       `json:"program_version"`
@@ -140,32 +141,33 @@ func makeEnergyReport(path string, s *setup, res *scf.Result, threads int) *ener
 		}
 	}
 	rep := &energyReport{
-		File:                    path,
-		Formula:                 s.mol.Formula(),
-		Method:                  s.method,
-		LevelOfTheory:           s.label(),
-		Basis:                   s.set.Name,
-		Functions:               conv,
-		Charge:                  s.mol.Charge,
-		Multiplicity:            s.mol.Multiplicity,
-		Unrestricted:            res.Unrestricted,
-		EnergyHartree:           res.EnergyHartree,
-		Converged:               res.Converged,
-		Iterations:              res.Iterations,
-		NuclearRepulsionHartree: res.NuclearRepulsion,
-		OneElectronHartree:      res.OneElectronEnergy,
-		TwoElectronHartree:      res.TwoElectronEnergy,
-		SSquared:                res.S2,
-		MullikenCharges:         res.MullikenCharges,
-		OrbitalEnergiesHartree:  res.OrbitalEnergies[0],
-		Occupied:                res.NumAlpha,
-		BasisFunctions:          res.NBF,
-		DroppedFunctions:        res.NumDropped,
-		IntegralsInMemory:       res.InCore,
-		Threads:                 threads,
-		WallSeconds:             res.Wall.Seconds(),
-		Version:                 version,
-		GeometryAngstrom:        s.mol.PositionsAngstrom(),
+		File:                     path,
+		Formula:                  s.mol.Formula(),
+		Method:                   s.method,
+		LevelOfTheory:            s.label(),
+		Basis:                    s.set.Name,
+		Functions:                conv,
+		Charge:                   s.mol.Charge,
+		Multiplicity:             s.mol.Multiplicity,
+		Unrestricted:             res.Unrestricted,
+		EnergyHartree:            res.EnergyHartree,
+		Converged:                res.Converged,
+		Iterations:               res.Iterations,
+		NuclearRepulsionHartree:  res.NuclearRepulsion,
+		OneElectronHartree:       res.OneElectronEnergy,
+		TwoElectronHartree:       res.TwoElectronEnergy,
+		SSquared:                 res.S2,
+		MullikenCharges:          res.MullikenCharges,
+		OrbitalEnergiesHartree:   res.OrbitalEnergies[0],
+		Occupied:                 res.NumAlpha,
+		BasisFunctions:           res.NBF,
+		DroppedFunctions:         res.NumDropped,
+		IntegralsInMemory:        res.InCore,
+		IntegralsInMemoryPercent: 100 * res.StoredIntegralFraction,
+		Threads:                  threads,
+		WallSeconds:              res.Wall.Seconds(),
+		Version:                  version,
+		GeometryAngstrom:         s.mol.PositionsAngstrom(),
 	}
 	if s.grid != nil {
 		rep.XCHartree = res.XCEnergy
@@ -203,8 +205,11 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 	fmt.Fprintf(w, "%s  %s (%s, %s functions)  charge %d  multiplicity %d\n",
 		rep.Formula, rep.LevelOfTheory, kind, rep.Functions, rep.Charge, rep.Multiplicity)
 	storage := "integral-direct"
-	if rep.IntegralsInMemory {
+	switch {
+	case rep.IntegralsInMemory:
 		storage = "integrals in memory"
+	case rep.IntegralsInMemoryPercent > 0:
+		storage = fmt.Sprintf("semi-direct (%.0f%% of the integrals in memory)", rep.IntegralsInMemoryPercent)
 	}
 	fmt.Fprintf(w, "%d basis functions", rep.BasisFunctions)
 	if rep.DroppedFunctions > 0 {

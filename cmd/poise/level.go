@@ -54,7 +54,7 @@ func (f *levelFlags) register(cmd *cobra.Command) {
 	fl.BoolVar(&f.spherical, "spherical", false, "use spherical (pure) d, f, ... functions whatever the basis set's convention")
 	fl.BoolVar(&f.unrestricted, "unrestricted", false, "unrestricted (different orbitals for different spins) even for a closed-shell singlet")
 	fl.IntVar(&f.threads, "threads", runtime.NumCPU(), "number of threads")
-	fl.StringVar(&f.memory, "memory", "2GiB", "memory budget (e.g. 800MiB, 4GiB); integrals are kept in memory when they fit, and Go's memory limit is set to it")
+	fl.StringVar(&f.memory, "memory", "2GiB", "memory budget (e.g. 800MiB, 4GiB); integrals are kept in memory when they fit in half of it (else the costliest that fit), and Go's memory limit is set to it")
 	fl.IntVar(&f.maxIter, "max-iterations", scf.DefaultMaxIterations, "largest number of SCF iterations")
 	fl.StringVar(&f.dispersion, "dispersion", "none", "empirical dispersion correction: none or d3bj (Grimme's D3 with Becke–Johnson damping)")
 	fl.IntVar(&f.gridLevel, "grid", grid.DefaultLevel, "DFT integration grid level, 1 (coarse) to 5 (finest)")

@@ -8,6 +8,7 @@ import (
 
 	"poise/energy/grid"
 	"poise/energy/integral"
+	"poise/energy/internal/hugepage"
 	"poise/energy/xc"
 )
 
@@ -50,7 +51,7 @@ type Potential struct {
 	// slab holds the stored values of all cached batches, batch bi from
 	// slabOff[bi] with room for all functions of its shells: the values
 	// are evaluated there in place, and it is one allocation that can be
-	// backed by huge pages (hugepages_linux.go).
+	// backed by huge pages (package hugepage).
 	slab    []float64
 	slabOff []int
 	// Scratch kept from one Build to the next: the potential blocks of one
@@ -284,7 +285,7 @@ func (p *Potential) prepareCache() {
 	}
 	if total > 0 {
 		p.slab = make([]float64, total)
-		adviseHugePages(p.slab)
+		hugepage.Advise(p.slab)
 	}
 }
 

@@ -114,6 +114,11 @@ type ERIEngine struct {
 	schwarz []float64 // nshell×nshell
 }
 
+// PairPrimitives is the number of primitive pairs of the shell pair (i, j)
+// kept after primitive screening: with the angular momenta, a measure of
+// the work of the pair's integrals.
+func (e *ERIEngine) PairPrimitives(i, j int) int { return len(e.pair(i, j).prims) }
+
 // NumShells is the number of shells of the basis.
 func (e *ERIEngine) NumShells() int { return e.nshell }
 

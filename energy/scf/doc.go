@@ -16,8 +16,13 @@
 //     & Ochsenfeld, J. Chem. Phys. 136, 144107 (2012)); the Coulomb matrix is
 //     accumulated in a packed shell-pair layout so that the ket side of a
 //     bra pair's quartets reads contiguous memory. Integrals are
-//     kept in memory when they fit the budget, else recomputed
-//     (integral-direct). Work is cut into fixed chunks of shell quartets whose
+//     kept in memory when they fit the budget; when they do not, those
+//     that cost most to compute per integral (contracted core shells) are
+//     kept as far as the budget allows and the rest are recomputed in
+//     every build (semi-direct; integral-direct when the budget holds
+//     almost nothing; semi-direct storage is common practice). Stored or
+//     recomputed, an integral is the same number, so the results do not
+//     depend on the budget. Work is cut into fixed chunks of shell quartets whose
 //     partial sums are added in chunk order, so results do not depend on the
 //     number of threads.
 //

@@ -145,12 +145,19 @@ func TestJKScreeningAndThreads(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := e2(Jr, Kr[0])
-	for _, mem := range []int64{1 << 30, 1} {
-		var first []float64
+	// In core, semi-direct with about 40 % of the integrals stored, and
+	// direct: the same numbers, bit for bit, with 1 and 2 threads.
+	nq := int64(len(ref.quartets) / 2)
+	semi := 16 * (nq + 1 + 4*ref.totalWords/10)
+	var first []float64
+	for _, mem := range []int64{1 << 30, semi, 1} {
 		for _, threads := range []int{1, 2} {
-			jk, err := newJKBuilder(context.Background(), b, threads, mem)
+			jk, err := newJKBuilderConfig(context.Background(), b, jkConfig{threads: threads, memoryBytes: mem, farField: true, minSemiDirectWords: 1})
 			if err != nil {
 				t.Fatal(err)
+			}
+			if f := jk.StoredFraction(); (mem == semi) != (f > 0.3 && f < 0.5) {
+				t.Fatalf("budget %d bytes: %.2f of the integrals stored", mem, f)
 			}
 			if _, _, err := jk.build(context.Background(), [][]float64{d0}, true); err != nil {
 				t.Fatal(err)
@@ -172,7 +179,7 @@ func TestJKScreeningAndThreads(t *testing.T) {
 			}
 			for i := range all {
 				if all[i] != first[i] {
-					t.Fatalf("in-core %v: element %d differs between 1 and 2 threads: %v, %v", jk.InCore(), i, first[i], all[i])
+					t.Fatalf("stored fraction %.2f, %d threads: element %d differs from the in-core build with 1 thread: %v, %v", jk.StoredFraction(), threads, i, all[i], first[i])
 				}
 			}
 		}
@@ -223,8 +230,9 @@ func TestCutChunks(t *testing.T) {
 	}
 }
 
-// TestDirectNotice checks the notice when the integrals do not fit in
-// half of the memory budget, and its absence when they do.
+// TestDirectNotice checks the notices when the integrals do not fit in
+// half of the memory budget (semi-direct when part of them does, direct
+// when the budget is tiny), and their absence when they do.
 func TestDirectNotice(t *testing.T) {
 	m := mol(t, waterAngstrom, false, 0, 0)
 	set, err := basis.Load("6-31g*")
@@ -235,20 +243,28 @@ func TestDirectNotice(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	b := integral.NewBasis(sh)
+	all, err := newJKBuilder(context.Background(), b, 1, 1<<30)
+	if err != nil {
+		t.Fatal(err)
+	}
+	half := 16 * (int64(len(all.quartets)/2) + 1 + all.totalWords/2)
 	for _, tc := range []struct {
-		mem    int64
-		notice bool
-	}{{1 << 30, false}, {4096, true}} {
+		mem  int64
+		says string // "": no notice
+	}{{1 << 30, ""}, {half, "semi-direct"}, {4096, "integral-direct"}} {
 		var got []string
-		jk, err := newJKBuilderLog(context.Background(), integral.NewBasis(sh), 1, tc.mem, func(s string) { got = append(got, s) })
+		jk, err := newJKBuilderConfig(context.Background(), b, jkConfig{threads: 1, memoryBytes: tc.mem, farField: true,
+			minSemiDirectWords: 1, log: func(s string) { got = append(got, s) }})
 		if err != nil {
 			t.Fatal(err)
 		}
-		if jk.InCore() == tc.notice || (len(got) == 1) != tc.notice {
+		if jk.InCore() != (tc.says == "") || (len(got) == 1) != (tc.says != "") {
 			t.Errorf("budget %d bytes: in core %v, notices %q", tc.mem, jk.InCore(), got)
+			continue
 		}
-		if tc.notice && !strings.Contains(got[0], "integral-direct") {
-			t.Errorf("notice %q does not say that the integrals are computed directly", got[0])
+		if tc.says != "" && !strings.Contains(got[0], tc.says) {
+			t.Errorf("budget %d bytes: notice %q does not say %q", tc.mem, got[0], tc.says)
 		}
 	}
 }
@@ -283,12 +299,12 @@ func TestFarFieldScreeningAlkane(t *testing.T) {
 	}
 	b := integral.NewBasis(sh)
 	n := b.NBF
-	ref, err := newJKBuilderScreen(context.Background(), b, 2, 1, nil, false)
+	ref, err := newJKBuilderConfig(context.Background(), b, jkConfig{threads: 2, memoryBytes: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
 	ref.exact = true
-	jk, err := newJKBuilderScreen(context.Background(), b, 2, 1, nil, true)
+	jk, err := newJKBuilderConfig(context.Background(), b, jkConfig{threads: 2, memoryBytes: 1, farField: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -332,5 +348,61 @@ func TestFarFieldScreeningAlkane(t *testing.T) {
 	}
 	if dE > 1e-8 {
 		t.Errorf("two-electron energies differ by %.2e Eh, want ≤ 1e-8", dE)
+	}
+}
+
+// TestSemiDirectSelection checks the choice of a semi-direct store on
+// anti-butane in 3-21G: it stays within its budget, fills most of it, and
+// keeps the quartets estimated costliest per integral (up to the
+// resolution of the binning, 2^(1/8)).
+func TestSemiDirectSelection(t *testing.T) {
+	m := mol(t, butaneAnti(t), false, 0, 0)
+	set, err := basis.Load("3-21g")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sh, err := set.Shells(m, basis.Default)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := integral.NewBasis(sh)
+	jk, err := newJKBuilderConfig(context.Background(), b, jkConfig{threads: 2, memoryBytes: 1, farField: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	nq := len(jk.quartets) / 2
+	weights := make([]int64, nq)
+	for q := range weights {
+		weights[q] = int64(jk.quartetWords(q))
+	}
+	for _, frac := range []float64{0.01, 0.1, 0.4, 0.9} {
+		budget := int64(frac * float64(jk.totalWords))
+		offsets := jk.selectCostliest(weights, budget)
+		stored := int64(offsets[nq])
+		if stored > budget || float64(stored) < 0.9*float64(budget) {
+			t.Errorf("budget %d words: %d stored", budget, stored)
+		}
+		minStored, maxOther := math.Inf(1), 0.0
+		var sum int64
+		next := 0
+		for q := 0; q < nq; q++ {
+			c := jk.costPerIntegral(q)
+			if offsets[q] < 0 {
+				maxOther = max(maxOther, c)
+				continue
+			}
+			if offsets[q] != next {
+				t.Fatalf("budget %d words: quartet %d stored at %d, want %d (quartet order)", budget, q, offsets[q], next)
+			}
+			next += int(weights[q])
+			sum += weights[q]
+			minStored = min(minStored, c)
+		}
+		if sum != stored {
+			t.Errorf("budget %d words: blocks add up to %d words, offsets say %d", budget, sum, stored)
+		}
+		if minStored < maxOther/math.Pow(2, 1.0/8) {
+			t.Errorf("budget %d words: a quartet of estimated cost %.3g is stored while one of %.3g is not", budget, minStored, maxOther)
+		}
 	}
 }

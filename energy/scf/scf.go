@@ -114,9 +114,13 @@ type Result struct {
 	IntegratedElectrons float64 // ∫ρ on the DFT grid (DFT)
 
 	NumAlpha, NumBeta int
-	NBF               int // basis functions
-	NumDropped        int // functions removed for near-linear dependence
-	InCore            bool
+	NBF               int  // basis functions
+	NumDropped        int  // functions removed for near-linear dependence
+	InCore            bool // every electron-repulsion integral kept in memory
+	// StoredIntegralFraction is the fraction of the electron-repulsion
+	// integrals kept in memory: 1 in core, 0 integral-direct, in between
+	// semi-direct (the costliest to compute kept, see --memory).
+	StoredIntegralFraction float64
 
 	// OrbitalEnergies[s] and Coefficients[s] per spin (one entry for
 	// restricted): energies ascending; coefficients NBF×NMO row-major.
@@ -356,6 +360,8 @@ func runLadder(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell
 		NMO:              m,
 		NumDropped:       p.dropped,
 		InCore:           p.jk.InCore(),
+
+		StoredIntegralFraction: p.jk.StoredFraction(),
 	}
 	note := func(format string, args ...any) {
 		msg := fmt.Sprintf(format, args...)
