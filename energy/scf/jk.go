@@ -238,7 +238,7 @@ func newJKBuilderConfig(ctx context.Context, b *integral.Basis, cfg jkConfig) (*
 	// (semi-direct) and compute the others anew in every build.
 	switch budget := memoryBytes / 2 / 8; {
 	case memoryBytes > 0 && storeWords <= budget:
-		if err := jk.fillInCore(ctx, jk.selectAll()); err != nil {
+		if err := jk.fillInCore(ctx, selectAll(weights)); err != nil {
 			return nil, err
 		}
 	case memoryBytes > 0 && budget-int64(len(weights)+1) >= max(cfg.minSemiDirectWords, 1):
@@ -261,17 +261,16 @@ func newJKBuilderConfig(ctx context.Context, b *integral.Basis, cfg jkConfig) (*
 // 2 MiB after the quartet offsets) the SCF is integral-direct.
 const minSemiDirectWords = 1 << 18
 
-// selectAll returns the offsets that store every quartet's block in
-// order.
-func (jk *jkBuilder) selectAll() []int {
-	nq := len(jk.quartets) / 2
-	offsets := make([]int, nq+1)
+// selectAll returns the offsets that store every quartet's block (of
+// weights[q] words) in order.
+func selectAll(weights []int64) []int {
+	offsets := make([]int, len(weights)+1)
 	off := 0
-	for q := 0; q < nq; q++ {
+	for q, w := range weights {
 		offsets[q] = off
-		off += jk.quartetWords(q)
+		off += int(w)
 	}
-	offsets[nq] = off
+	offsets[len(weights)] = off
 	return offsets
 }
 
@@ -384,17 +383,10 @@ func (jk *jkBuilder) InCore() bool { return jk.allStored }
 // StoredFraction is the fraction of the integrals kept in memory: 1 in
 // core, 0 integral-direct, in between semi-direct.
 func (jk *jkBuilder) StoredFraction() float64 {
-	if jk.allStored || jk.totalWords == 0 {
-		return b2f(jk.allStored)
+	if jk.totalWords == 0 {
+		return 1 // nothing to compute
 	}
 	return float64(jk.storedWords) / float64(jk.totalWords)
-}
-
-func b2f(b bool) float64 {
-	if b {
-		return 1
-	}
-	return 0
 }
 
 // quartetShells returns the shells i, j, k, l of quartet q.
@@ -442,6 +434,7 @@ func (jk *jkBuilder) fillInCore(ctx context.Context, offsets []int) error {
 	nq := len(jk.quartets) / 2
 	words := offsets[nq]
 	if words == 0 {
+		jk.allStored = jk.totalWords == 0
 		return nil
 	}
 	store := make([]float64, words)
