@@ -86,15 +86,13 @@ type jkBuilder struct {
 
 	// incore holds the integral blocks of the stored quartets,
 	// concatenated in quartet order: every quartet when they fit in
-	// memory (allStored), the costliest ones that fit when not
-	// (semi-direct), nil when none do (direct). offsets[q] is the start of
-	// quartet q's block in incore, −1 for a quartet computed anew in every
-	// build.
-	incore      []float64
-	offsets     []int
-	allStored   bool
-	storedWords int64 // words in incore
-	totalWords  int64 // words of all quartets
+	// memory, the costliest ones that fit when not (semi-direct), none
+	// (direct). offsets[q] is the start of quartet q's block in incore, −1
+	// for a quartet computed anew in every build. totalWords counts the
+	// integrals of all quartets.
+	incore     []float64
+	offsets    []int
+	totalWords int64
 
 	pool []jkBuffers // per-chunk accumulation buffers, reused between builds
 
@@ -143,8 +141,9 @@ type jkConfig struct {
 	// farField switches the far-field bound on (off: Schwarz screening
 	// alone, for tests).
 	farField bool
-	// minSemiDirectWords is the smallest semi-direct store
-	// (minSemiDirectWords; tests lower it to store part of a small basis).
+	// minSemiDirectWords is the smallest semi-direct store worth keeping
+	// (normally the constant minSemiDirectWords; tests lower it to store
+	// part of a small basis).
 	minSemiDirectWords int64
 }
 
@@ -236,18 +235,22 @@ func newJKBuilderConfig(ctx context.Context, b *integral.Basis, cfg jkConfig) (*
 	// the rest is left for matrices, buffers and the garbage collector.
 	// When they do not fit, keep the costliest to compute per word that do
 	// (semi-direct) and compute the others anew in every build.
-	switch budget := memoryBytes / 2 / 8; {
+	// The quartet offsets of a semi-direct store count against its half.
+	budget := memoryBytes / 2 / 8
+	semiBudget := budget - int64(len(weights)+1)
+	switch {
 	case memoryBytes > 0 && storeWords <= budget:
 		if err := jk.fillInCore(ctx, selectAll(weights)); err != nil {
 			return nil, err
 		}
-	case memoryBytes > 0 && budget-int64(len(weights)+1) >= max(cfg.minSemiDirectWords, 1):
-		if err := jk.fillInCore(ctx, jk.selectCostliest(weights, budget-int64(len(weights)+1))); err != nil {
+	case memoryBytes > 0 && semiBudget >= max(cfg.minSemiDirectWords, 1):
+		if err := jk.fillInCore(ctx, jk.selectCostliest(weights, semiBudget)); err != nil {
 			return nil, err
 		}
 		if log != nil {
+			stored := int64(len(jk.incore))
 			log(fmt.Sprintf("the electron-repulsion integrals need %s, more than half of the memory budget of %s (--memory): keeping the %.0f%% of them (%s) that take longest to compute in memory and computing the rest anew in every SCF iteration (semi-direct)",
-				mebibytes(storeWords*8), mebibytes(memoryBytes), 100*float64(jk.storedWords)/float64(storeWords), mebibytes(jk.storedWords*8)))
+				mebibytes(storeWords*8), mebibytes(memoryBytes), 100*float64(stored)/float64(storeWords), mebibytes(stored*8)))
 		}
 	case log != nil && memoryBytes > 0 && storeWords > 0:
 		log(fmt.Sprintf("the electron-repulsion integrals need %s, more than half of the memory budget of %s (--memory): computing them anew in every SCF iteration (integral-direct)",
@@ -378,7 +381,7 @@ func cutChunks(weights []int64, total int64) []int {
 }
 
 // InCore reports whether all the integrals are kept in memory.
-func (jk *jkBuilder) InCore() bool { return jk.allStored }
+func (jk *jkBuilder) InCore() bool { return int64(len(jk.incore)) == jk.totalWords }
 
 // StoredFraction is the fraction of the integrals kept in memory: 1 in
 // core, 0 integral-direct, in between semi-direct.
@@ -386,7 +389,7 @@ func (jk *jkBuilder) StoredFraction() float64 {
 	if jk.totalWords == 0 {
 		return 1 // nothing to compute
 	}
-	return float64(jk.storedWords) / float64(jk.totalWords)
+	return float64(len(jk.incore)) / float64(jk.totalWords)
 }
 
 // quartetShells returns the shells i, j, k, l of quartet q.
@@ -434,7 +437,6 @@ func (jk *jkBuilder) fillInCore(ctx context.Context, offsets []int) error {
 	nq := len(jk.quartets) / 2
 	words := offsets[nq]
 	if words == 0 {
-		jk.allStored = jk.totalWords == 0
 		return nil
 	}
 	store := make([]float64, words)
@@ -451,8 +453,6 @@ func (jk *jkBuilder) fillInCore(ctx context.Context, offsets []int) error {
 		return err
 	}
 	jk.incore, jk.offsets = store, offsets
-	jk.storedWords = int64(words)
-	jk.allStored = int64(words) == jk.totalWords
 	return nil
 }
 
@@ -615,7 +615,7 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 			go func() {
 				defer wg.Done()
 				var w *integral.ERIWorkspace
-				if !jk.allStored {
+				if !jk.InCore() {
 					w = jk.eri.NewWorkspace()
 				}
 				for ctx.Err() == nil {
