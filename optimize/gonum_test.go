@@ -63,12 +63,6 @@ func equalSlices(a, b []float64) bool {
 	return true
 }
 
-// gradientOnly are criteria that stop, like gonum's GradientThreshold, as
-// soon as the largest gradient component is below maxGradient.
-func gradientOnly(maxGradient float64) Criteria {
-	return Criteria{MaxGradient: maxGradient, RMSGradient: 1, MaxStep: 1, RMSStep: 1, EnergyChange: 1}
-}
-
 // BenchmarkRobustnessSet relaxes each molecule of the robustness set at
 // HF/STO-3G from its distorted start ("report" level) and reports the
 // surface evaluations per relaxation; ns/op is the wall time of one

@@ -39,18 +39,6 @@ func eigenSym(a *mat.SymDense) ([]float64, *mat.Dense, error) {
 	return vals, &vecs, nil
 }
 
-// symmetrize returns (a + aᵀ)/2 of a square dense matrix as SymDense.
-func symmetrize(a mat.Matrix) *mat.SymDense {
-	n, _ := a.Dims()
-	s := mat.NewSymDense(n, nil)
-	for i := 0; i < n; i++ {
-		for j := i; j < n; j++ {
-			s.SetSym(i, j, 0.5*(a.At(i, j)+a.At(j, i)))
-		}
-	}
-	return s
-}
-
 // orthonormalize returns an orthonormal basis (columns) of the span of the
 // given vectors, dropping those whose remainder after projection is
 // shorter than tol times their length (modified Gram–Schmidt, twice).

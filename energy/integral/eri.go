@@ -752,27 +752,6 @@ func eriTransformSparse(dst, src []float64, pre, nc, nf, post int, nz []eriNZ) {
 	}
 }
 
-// eriTransformAxis applies the nf×nc matrix m to the middle index of src
-// viewed as [pre][nc][post], writing dst as [pre][nf][post].
-func eriTransformAxis(dst, src []float64, pre, nc, nf, post int, m []float64) {
-	for p := 0; p < pre; p++ {
-		for f := 0; f < nf; f++ {
-			d := dst[(p*nf+f)*post : (p*nf+f+1)*post]
-			clear(d)
-			row := m[f*nc : (f+1)*nc]
-			for c, coef := range row {
-				if coef == 0 {
-					continue
-				}
-				s := src[(p*nc+c)*post : (p*nc+c+1)*post]
-				for q := range d {
-					d[q] += coef * s[q]
-				}
-			}
-		}
-	}
-}
-
 // Tensor returns the full nbf⁴ tensor of integrals (ab|cd), row-major. It
 // is meant for tests and very small systems.
 func (e *ERIEngine) Tensor() []float64 {
