@@ -29,6 +29,9 @@ type Level struct {
 	Unrestricted     bool   `json:"unrestricted"`
 	GridLevel        int    `json:"grid_level,omitempty"`
 	Dispersion       string `json:"dispersion,omitempty"` // e.g. "d3bj"
+	// Fit is the auxiliary basis set of density fitting (e.g.
+	// "def2-universal-JKFIT"), empty for exact integrals.
+	Fit string `json:"fit,omitempty"`
 }
 
 // FileScaling records which scale factor fed which number.

@@ -10,6 +10,7 @@ import (
 
 	"poise/energy/basis"
 	"poise/energy/dft"
+	"poise/energy/fit"
 	"poise/energy/integral"
 	"poise/energy/molecule"
 	"poise/energy/scf"
@@ -100,8 +101,25 @@ func Analytic(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell,
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	eri := integral.NewERI(b)
-	c.TwoElectron = trim(eri.GradientJK(dens, ax, nat, threads), nat)
+	if res.AuxShells != nil {
+		// The same density fit as the SCF: the derivative of the fitted
+		// energy.
+		f := res.Fit
+		if f == nil {
+			var err error
+			if f, err = fit.New(ctx, b, integral.NewBasis(res.AuxShells), threads); err != nil {
+				return nil, fmt.Errorf("gradient: density fitting: %w", err)
+			}
+		}
+		g, err := f.Gradient(ctx, dens, ax, nat)
+		if err != nil {
+			return nil, fmt.Errorf("gradient: density-fitted two-electron part: %w", err)
+		}
+		c.TwoElectron = trim(g, nat)
+	} else {
+		eri := integral.NewERI(b)
+		c.TwoElectron = trim(eri.GradientJK(dens, ax, nat, threads), nat)
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

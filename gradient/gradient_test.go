@@ -108,24 +108,30 @@ func TestAnalyticVersusCentralDifferences(t *testing.T) {
 			if err := s.Evaluate(context.Background(), x, Request{Gradient: true}, &p); err != nil {
 				t.Fatal(err)
 			}
-			coords := c.coords
-			if coords == nil {
-				for i := range x {
-					coords = append(coords, i)
-				}
-			}
-			for _, i := range coords {
-				fd := centralDifference(t, s, x, i, DefaultStep)
-				if d := math.Abs(fd - p.Gradient[i]); d > c.tol {
-					t.Errorf("coordinate %d: analytic %.9f, central difference %.9f, off by %.2e (tolerance %.0e)", i, p.Gradient[i], fd, d, c.tol)
-				}
-				// A component that vanishes by symmetry makes the
-				// comparison empty.
-				if math.Abs(fd) < 1e-6 {
-					t.Errorf("coordinate %d: gradient %.2e too small to test", i, fd)
-				}
-			}
+			compareCentralDifferences(t, s, x, p.Gradient, c.coords, c.tol)
 		})
+	}
+}
+
+// compareCentralDifferences checks the analytic gradient g at x against
+// central differences of s along the coordinates (nil: all), each to tol.
+func compareCentralDifferences(t *testing.T, s Surface, x, g []float64, coords []int, tol float64) {
+	t.Helper()
+	if coords == nil {
+		for i := range x {
+			coords = append(coords, i)
+		}
+	}
+	for _, i := range coords {
+		fd := centralDifference(t, s, x, i, DefaultStep)
+		if d := math.Abs(fd - g[i]); d > tol {
+			t.Errorf("coordinate %d: analytic %.9f, central difference %.9f, off by %.2e (tolerance %.0e)", i, g[i], fd, d, tol)
+		}
+		// A component that vanishes by symmetry makes the comparison
+		// empty.
+		if math.Abs(fd) < 1e-6 {
+			t.Errorf("coordinate %d: gradient %.2e too small to test", i, fd)
+		}
 	}
 }
 

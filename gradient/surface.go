@@ -12,6 +12,7 @@ import (
 	"poise/energy/basis"
 	"poise/energy/dft"
 	"poise/energy/dispersion"
+	"poise/energy/fit"
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/molecule"
@@ -84,7 +85,7 @@ type Config struct {
 	// for the life of the surface, so that the energy is a smooth function
 	// of the coordinates (the grid points move with their atoms).
 	Frame *grid.Frame
-	// SCF are the SCF options; XC and Guess are set by the surface
+	// SCF are the SCF options; XC, Guess and AuxShells are set by the surface
 	// (SCF.Guess, if given, becomes the first warm start). SCF.Threads is
 	// the default and largest thread budget of an evaluation, and
 	// SCF.MemoryBytes its memory budget, scaled down with the threads of a
@@ -99,6 +100,45 @@ type Config struct {
 	// Dispersion, when set, adds the D3(BJ) correction (energy and
 	// analytic gradient) to every point.
 	Dispersion *dispersion.Params
+	// Fit, when set, is the auxiliary basis set in which the SCF density
+	// fits the Coulomb and exchange terms (RI-JK, scf.Options.AuxShells);
+	// nil computes them from exact four-centre integrals. Its shells are
+	// built for every geometry like the orbital shells, in the set's own
+	// (spherical) functions whatever Convention says. It must be a
+	// Coulomb-and-exchange fitting set (basis.RoleJKFit), or a
+	// Coulomb-only one (basis.RoleJFit) for methods without exact
+	// exchange, and cover every element of the molecule.
+	Fit *basis.Set
+}
+
+// CheckFit reports whether fit can serve as the auxiliary basis of method
+// (nil: Hartree–Fock) for the elements of mol: a nil fit always can; else
+// it must be a fitting set (basis.RoleJKFit, or basis.RoleJFit when the
+// method has no exact exchange) that covers every element. A missing
+// element gives an error wrapping *basis.MissingElementError.
+func CheckFit(fit *basis.Set, method *xc.Functional, mol *molecule.Molecule) error {
+	if fit == nil {
+		return nil
+	}
+	switch fit.Role {
+	case basis.RoleJKFit:
+	case basis.RoleJFit:
+		if method == nil || method.ExactExchange() != 0 {
+			name := "hf"
+			if method != nil {
+				name = method.Name()
+			}
+			return fmt.Errorf("gradient: fitting set %s fits only the Coulomb term, and %s has exact exchange: give a Coulomb-and-exchange (JKFIT) fitting set", fit.Name, name)
+		}
+	default:
+		return fmt.Errorf("gradient: %s is not a density-fitting set (its role is %q): give a JKFIT or JFIT set", fit.Name, fit.Role)
+	}
+	if mol != nil {
+		if _, err := fit.Shells(mol, basis.Default); err != nil {
+			return fmt.Errorf("gradient: fitting set: %w", err)
+		}
+	}
+	return nil
 }
 
 // SCFSurface is the Surface of a molecule at a level of theory, computed
@@ -144,6 +184,9 @@ func NewSCFSurface(mol *molecule.Molecule, cfg Config) (*SCFSurface, error) {
 	}
 	shells, err := cfg.Basis.Shells(m, cfg.Convention)
 	if err != nil {
+		return nil, err
+	}
+	if err := CheckFit(cfg.Fit, cfg.Method, m); err != nil {
 		return nil, err
 	}
 	_, nbf := basis.Offsets(shells)
@@ -388,6 +431,9 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 	}
 	opts.Guess = guess
 	opts.XC, opts.XCStart = nil, nil
+	if opts.AuxShells, err = s.auxShells(m); err != nil {
+		return nil, err
+	}
 	var pot *dft.Potential
 	if fn := s.cfg.Method; fn != nil && fn.NeedsGrid() {
 		z, pos := atomsOf(m)
@@ -398,6 +444,10 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		ib := integral.NewBasis(shells)
 		pot = dft.New(fn, g, ib, threads)
 		pot.CacheBytes = dft.CacheBytesFor(opts.MemoryBytes, ib.NBF)
+		if opts.AuxShells != nil {
+			_, naux := basis.Offsets(opts.AuxShells)
+			pot.CacheBytes = dft.CacheBytesFitted(opts.MemoryBytes, fit.PeakBytes(ib.NBF, naux))
+		}
 		opts.XC = pot
 		if guess == nil {
 			if opts.XCStart, err = StartXC(fn, z, pos, s.cfg.GridLevel, s.frame, ib, threads, pot.CacheBytes); err != nil {
@@ -440,6 +490,16 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		}
 	}
 	return c, nil
+}
+
+// auxShells is the auxiliary basis of density fitting at m's geometry
+// (nil without fitting). Fitting sets are defined in spherical functions:
+// they keep their own convention whatever the orbital basis's is.
+func (s *SCFSurface) auxShells(m *molecule.Molecule) ([]basis.Shell, error) {
+	if s.cfg.Fit == nil {
+		return nil, nil
+	}
+	return s.cfg.Fit.Shells(m, basis.Default)
 }
 
 // orbitalGap is the smallest HOMO–LUMO gap over the spins of res (0 when

@@ -58,8 +58,12 @@ type Level struct {
 	GridLevel int
 	// Dispersion, when set, adds D3(BJ).
 	Dispersion *dispersion.Params
+	// Fit, when set, is the auxiliary basis set of density fitting
+	// (gradient.Config.Fit); nil means exact four-centre integrals.
+	Fit *basis.Set
 	// SCF carries thresholds, iteration limit, unrestricted flag and
-	// resources (Threads, MemoryBytes). XC, Guess and Progress are ignored.
+	// resources (Threads, MemoryBytes). XC, Guess, Progress and AuxShells
+	// are ignored (the surface builds the auxiliary shells from Fit).
 	SCF scf.Options
 }
 
@@ -72,13 +76,28 @@ func (l Level) methodName() string {
 
 func (l Level) needsGrid() bool { return l.Method != nil && l.Method.NeedsGrid() }
 
-// Label is the level of theory as printed, e.g. "B3LYP-D3(BJ)/6-31G*".
+// Label is the level of theory as printed, e.g. "B3LYP-D3(BJ)/6-31G*",
+// or "B3LYP/6-31G* (RI-JK: def2-universal-JKFIT)" with density fitting.
 func (l Level) Label() string {
 	name := "?"
 	if l.Basis != nil {
 		name = l.Basis.Name
 	}
-	return LevelLabel(l.methodName(), name, l.Dispersion != nil)
+	return LevelLabel(l.methodName(), name, l.Dispersion != nil) + FitLabel(l.Fit)
+}
+
+// FitLabel is what a level's label gains with density fitting: "" without
+// it, else " (RI-JK: NAME)" for a Coulomb-and-exchange fitting set and
+// " (RI-J: NAME)" for a Coulomb-only one.
+func FitLabel(fit *basis.Set) string {
+	if fit == nil {
+		return ""
+	}
+	kind := "RI-JK"
+	if fit.Role == basis.RoleJFit {
+		kind = "RI-J"
+	}
+	return " (" + kind + ": " + fit.Name + ")"
 }
 
 // LevelLabel is the printed and stored form of a level of theory, e.g.
@@ -107,8 +126,15 @@ func (l Level) tag() string {
 		name = l.Basis.Name
 	}
 	o := l.SCF
-	return fmt.Sprintf("method=%s basis=%s convention=%v grid=%d dispersion=%s unrestricted=%v etol=%g gtol=%g lindep=%g",
+	t := fmt.Sprintf("method=%s basis=%s convention=%v grid=%d dispersion=%s unrestricted=%v etol=%g gtol=%g lindep=%g",
 		l.methodName(), name, l.Convention, grid, disp, o.Unrestricted, o.EnergyTolerance, o.GradientTolerance, o.LinearDependence)
+	if l.Fit != nil {
+		// Only with fitting on: the tags (and store keys) of levels
+		// without it stay those of the stores written before fitting
+		// existed.
+		t += " fit=" + l.Fit.Name
+	}
+	return t
 }
 
 // Options control Run. Start from DefaultOptions: zero values of
@@ -381,9 +407,9 @@ func (r *runner) surface(l Level, tight bool) (gradient.Surface, error) {
 		return r.opts.NewSurface(r.mol, l)
 	}
 	o := l.SCF
-	o.XC, o.XCStart, o.Guess, o.Progress = nil, nil, nil, nil
+	o.XC, o.XCStart, o.Guess, o.Progress, o.AuxShells = nil, nil, nil, nil, nil
 	return gradient.NewSCFSurface(r.mol, gradient.Config{Basis: l.Basis, Convention: l.Convention, Method: l.Method,
-		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion})
+		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion, Fit: l.Fit})
 }
 
 // relax relaxes from x to the named criteria, starting from init's
@@ -798,6 +824,9 @@ func modesFile(mol *molecule.Molecule, lvl Level, h *freq.Hessian, an *freq.Anal
 	}
 	if lvl.needsGrid() {
 		f.Level.GridLevel = lvl.GridLevel
+	}
+	if lvl.Fit != nil {
+		f.Level.Fit = lvl.Fit.Name
 	}
 	if lvl.Dispersion != nil {
 		f.Level.Dispersion = "d3bj"

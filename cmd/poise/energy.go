@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"poise/energy/basis"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -16,43 +17,47 @@ import (
 
 // energyReport is the JSON form of an energy calculation.
 type energyReport struct {
-	File                     string       `json:"file"`
-	Formula                  string       `json:"formula"`
-	Method                   string       `json:"method"`
-	Basis                    string       `json:"basis"`
-	Functions                string       `json:"angular_functions"`
-	Charge                   int          `json:"charge"`
-	Multiplicity             int          `json:"multiplicity"`
-	Unrestricted             bool         `json:"unrestricted"`
-	EnergyHartree            float64      `json:"energy_hartree"`
-	Converged                bool         `json:"converged"`
-	Iterations               int          `json:"iterations"`
-	NuclearRepulsionHartree  float64      `json:"nuclear_repulsion_hartree"`
-	OneElectronHartree       float64      `json:"one_electron_energy_hartree"`
-	TwoElectronHartree       float64      `json:"two_electron_energy_hartree"`
-	DispersionHartree        float64      `json:"dispersion_energy_hartree"`
-	LevelOfTheory            string       `json:"level_of_theory"`
-	XCHartree                float64      `json:"exchange_correlation_hartree,omitempty"`
-	IntegratedElectrons      float64      `json:"integrated_electrons,omitempty"`
-	GridLevel                int          `json:"grid_level,omitempty"`
-	GridPoints               int          `json:"grid_points,omitempty"`
-	SSquared                 float64      `json:"s_squared"`
-	DipoleDebye              [3]float64   `json:"dipole_debye"`
-	DipoleTotalDebye         float64      `json:"dipole_total_debye"`
-	MullikenCharges          []float64    `json:"mulliken_charges"`
-	OrbitalEnergiesHartree   []float64    `json:"orbital_energies_hartree"`
-	OrbitalEnergiesBetaHartr []float64    `json:"orbital_energies_beta_hartree,omitempty"`
-	Occupied                 int          `json:"occupied_orbitals"`
-	OccupiedBeta             int          `json:"occupied_orbitals_beta,omitempty"`
-	BasisFunctions           int          `json:"basis_functions"`
-	DroppedFunctions         int          `json:"dropped_functions"`
-	IntegralsInMemory        bool         `json:"integrals_in_memory"`
-	IntegralsInMemoryPercent float64      `json:"integrals_in_memory_percent"`
-	Threads                  int          `json:"threads"`
-	WallSeconds              float64      `json:"wall_seconds"`
-	Version                  string       `json:"program_version"`
-	Symbols                  []string     `json:"symbols"`
-	GeometryAngstrom         [][3]float64 `json:"geometry_angstrom"`
+	File                     string     `json:"file"`
+	Formula                  string     `json:"formula"`
+	Method                   string     `json:"method"`
+	Basis                    string     `json:"basis"`
+	Fit                      string     `json:"fit"`
+	Functions                string     `json:"angular_functions"`
+	Charge                   int        `json:"charge"`
+	Multiplicity             int        `json:"multiplicity"`
+	Unrestricted             bool       `json:"unrestricted"`
+	EnergyHartree            float64    `json:"energy_hartree"`
+	Converged                bool       `json:"converged"`
+	Iterations               int        `json:"iterations"`
+	NuclearRepulsionHartree  float64    `json:"nuclear_repulsion_hartree"`
+	OneElectronHartree       float64    `json:"one_electron_energy_hartree"`
+	TwoElectronHartree       float64    `json:"two_electron_energy_hartree"`
+	DispersionHartree        float64    `json:"dispersion_energy_hartree"`
+	LevelOfTheory            string     `json:"level_of_theory"`
+	XCHartree                float64    `json:"exchange_correlation_hartree,omitempty"`
+	IntegratedElectrons      float64    `json:"integrated_electrons,omitempty"`
+	GridLevel                int        `json:"grid_level,omitempty"`
+	GridPoints               int        `json:"grid_points,omitempty"`
+	SSquared                 float64    `json:"s_squared"`
+	DipoleDebye              [3]float64 `json:"dipole_debye"`
+	DipoleTotalDebye         float64    `json:"dipole_total_debye"`
+	MullikenCharges          []float64  `json:"mulliken_charges"`
+	OrbitalEnergiesHartree   []float64  `json:"orbital_energies_hartree"`
+	OrbitalEnergiesBetaHartr []float64  `json:"orbital_energies_beta_hartree,omitempty"`
+	Occupied                 int        `json:"occupied_orbitals"`
+	OccupiedBeta             int        `json:"occupied_orbitals_beta,omitempty"`
+	BasisFunctions           int        `json:"basis_functions"`
+	DroppedFunctions         int        `json:"dropped_functions"`
+	IntegralsInMemory        bool       `json:"integrals_in_memory"`
+	IntegralsInMemoryPercent float64    `json:"integrals_in_memory_percent"`
+	// AuxiliaryFunctions is the size of the fitting basis (--fit), 0 for
+	// exact integrals.
+	AuxiliaryFunctions int          `json:"auxiliary_functions,omitempty"`
+	Threads            int          `json:"threads"`
+	WallSeconds        float64      `json:"wall_seconds"`
+	Version            string       `json:"program_version"`
+	Symbols            []string     `json:"symbols"`
+	GeometryAngstrom   [][3]float64 `json:"geometry_angstrom"`
 	// Stability is the wavefunction stability check (--stability).
 	Stability *stabilityReport `json:"stability,omitempty"`
 	// SCFNotes lists the convergence fallbacks and stability steps taken.
@@ -146,6 +151,7 @@ func makeEnergyReport(path string, s *setup, res *scf.Result, threads int) *ener
 		Method:                   s.method,
 		LevelOfTheory:            s.label(),
 		Basis:                    s.set.Name,
+		Fit:                      s.fitName(),
 		Functions:                conv,
 		Charge:                   s.mol.Charge,
 		Multiplicity:             s.mol.Multiplicity,
@@ -164,6 +170,7 @@ func makeEnergyReport(path string, s *setup, res *scf.Result, threads int) *ener
 		DroppedFunctions:         res.NumDropped,
 		IntegralsInMemory:        res.InCore,
 		IntegralsInMemoryPercent: 100 * res.StoredIntegralFraction,
+		AuxiliaryFunctions:       auxFunctions(res.AuxShells),
 		Threads:                  threads,
 		WallSeconds:              res.Wall.Seconds(),
 		Version:                  version,
@@ -206,6 +213,8 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 		rep.Formula, rep.LevelOfTheory, kind, rep.Functions, rep.Charge, rep.Multiplicity)
 	storage := "integral-direct"
 	switch {
+	case rep.AuxiliaryFunctions > 0:
+		storage = fmt.Sprintf("density fitted with %d auxiliary functions", rep.AuxiliaryFunctions)
 	case rep.IntegralsInMemory:
 		storage = "integrals in memory"
 	case rep.IntegralsInMemoryPercent > 0:
@@ -330,4 +339,10 @@ func exactArgs(n int) cobra.PositionalArgs {
 		}
 		return nil
 	}
+}
+
+// auxFunctions is the number of functions of the auxiliary shells.
+func auxFunctions(aux []basis.Shell) int {
+	_, n := basis.Offsets(aux)
+	return n
 }

@@ -122,6 +122,7 @@ func (s *setup) surfaceConfig(numeric bool, step float64) gradient.Config {
 		Numeric:    numeric,
 		Step:       step,
 		Dispersion: s.dispersion,
+		Fit:        s.fit,
 	}
 	if s.grid != nil {
 		fr := s.grid.Frame

@@ -17,6 +17,7 @@ import (
 	"poise/energy/basis"
 	"poise/energy/dft"
 	"poise/energy/dispersion"
+	"poise/energy/fit"
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/molecule"
@@ -42,6 +43,7 @@ type levelFlags struct {
 	gridLevel    int
 	dispersion   string
 	stability    string
+	fit          string
 }
 
 func (f *levelFlags) register(cmd *cobra.Command) {
@@ -58,6 +60,7 @@ func (f *levelFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.maxIter, "max-iterations", scf.DefaultMaxIterations, "largest number of SCF iterations")
 	fl.StringVar(&f.dispersion, "dispersion", "none", "empirical dispersion correction: none or d3bj (Grimme's D3 with Becke–Johnson damping)")
 	fl.IntVar(&f.gridLevel, "grid", grid.DefaultLevel, "DFT integration grid level, 1 (coarse) to 5 (finest)")
+	fl.StringVar(&f.fit, "fit", "none", "density fitting (RI-JK) of the Coulomb and exchange terms: none (exact integrals), jk (def2-universal-JKFIT) or a fitting set's name (see 'poise basis list')")
 	fl.StringVar(&f.stability, "stability", "off", "wavefunction stability check: off; check (report a restricted → unrestricted or internal instability); follow (also follow it to the lower, unrestricted solution)")
 }
 
@@ -118,12 +121,59 @@ type setup struct {
 	grid      *grid.Grid
 	// dispersion holds the D3(BJ) parameters when the correction is on.
 	dispersion *dispersion.Params
+	// fit is the auxiliary basis set of density fitting (--fit); nil for
+	// exact four-centre integrals. opts.AuxShells holds its shells for
+	// mol's geometry.
+	fit *basis.Set
 }
 
 // label is the level of theory as printed and stored, e.g.
-// "B3LYP-D3(BJ)/6-31G*".
+// "B3LYP-D3(BJ)/6-31G*" or "B3LYP/6-31G* (RI-JK: def2-universal-JKFIT)".
 func (s *setup) label() string {
-	return settle.LevelLabel(s.method, s.set.Name, s.dispersion != nil)
+	return settle.LevelLabel(s.method, s.set.Name, s.dispersion != nil) + settle.FitLabel(s.fit)
+}
+
+// fitName is the auxiliary set's name for JSON output, "none" without
+// density fitting.
+func (s *setup) fitName() string {
+	if s.fit == nil {
+		return "none"
+	}
+	return s.fit.Name
+}
+
+// fitOff reports whether a --fit value asks for exact integrals.
+func fitOff(name string) bool {
+	n := strings.ToLower(strings.TrimSpace(name))
+	return n == "" || n == "none"
+}
+
+// loadFit reads the --fit set for method fn (nil when fitting is off):
+// "jk" is def2-universal-JKFIT, other names as 'poise basis list' shows
+// them. An orbital set, or a Coulomb-only set with a method that has exact
+// exchange, is a usage error.
+func loadFit(name string, fn *xc.Functional) (*basis.Set, error) {
+	if fitOff(name) {
+		return nil, nil
+	}
+	n := strings.TrimSpace(name)
+	if strings.EqualFold(n, "jk") {
+		n = "def2-universal-JKFIT"
+	}
+	set, err := basis.Load(n)
+	if err != nil {
+		return nil, usageErr(fmt.Errorf("--fit: %w; give none, jk, or a fitting set (JKFIT or JFIT)", err))
+	}
+	switch set.Role {
+	case basis.RoleJKFit:
+	case basis.RoleJFit:
+		if fn.ExactExchange() != 0 {
+			return nil, usageErr(fmt.Errorf("--fit %s with --method %s: the JFIT sets fit only the Coulomb term; give def2-universal-jkfit (or jk) for HF and hybrid functionals", name, fn.Name()))
+		}
+	default:
+		return nil, usageErr(fmt.Errorf("--fit %s: %s is an orbital basis set, not a density-fitting set; give jk (def2-universal-JKFIT), a fitting set from 'poise basis list', or none", name, set.Name))
+	}
+	return set, nil
 }
 
 // dispersionEnergy returns the D3(BJ) correction for the molecule (zero
@@ -176,6 +226,10 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 	default:
 		return nil, usageErr(fmt.Errorf("--dispersion %q: give none or d3bj", f.dispersion))
 	}
+	fit, err := loadFit(f.fit, fn)
+	if err != nil {
+		return nil, err
+	}
 	mol, err := molecule.ReadXYZFile(path)
 	if err != nil {
 		return nil, usageErr(err)
@@ -200,6 +254,10 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 	if err != nil {
 		return nil, usageErr(fmt.Errorf("%s: %w", path, err))
 	}
+	aux, err := fitShells(path, fit, mol)
+	if err != nil {
+		return nil, err
+	}
 	debug.SetMemoryLimit(mem)
 	st := &setup{
 		mol:      mol,
@@ -214,13 +272,30 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 			Threads:       f.threads,
 			MemoryBytes:   mem,
 			Log:           onceLogger(os.Stderr),
+			AuxShells:     aux,
 		},
 		fn:         fn,
 		stability:  stab,
 		gridLevel:  f.gridLevel,
 		dispersion: disp,
+		fit:        fit,
 	}
 	return st, nil
+}
+
+// fitShells places the --fit set's shells on mol's atoms (nil without
+// fitting). Fitting sets are spherical by definition: they keep their own
+// convention whatever --cartesian or --spherical say. An element the set
+// lacks is a usage error naming it and the set.
+func fitShells(path string, fit *basis.Set, mol *molecule.Molecule) ([]basis.Shell, error) {
+	if fit == nil {
+		return nil, nil
+	}
+	aux, err := fit.Shells(mol, basis.Default)
+	if err != nil {
+		return nil, usageErr(fmt.Errorf("%s: --fit: %w", path, err))
+	}
+	return aux, nil
 }
 
 // attachXC builds the DFT grid (oriented by the molecule's standard frame
@@ -253,6 +328,10 @@ func (s *setup) attachXC(frame *grid.Frame) error {
 	ib := integral.NewBasis(s.shells)
 	pot := dft.New(s.fn, g, ib, s.opts.Threads)
 	pot.CacheBytes = dft.CacheBytesFor(s.memBytes, ib.NBF)
+	if s.opts.AuxShells != nil {
+		_, naux := basis.Offsets(s.opts.AuxShells)
+		pot.CacheBytes = dft.CacheBytesFitted(s.memBytes, fit.PeakBytes(ib.NBF, naux))
+	}
 	s.opts.XC = pot
 	if s.opts.XCStart, err = gradient.StartXC(s.fn, z, pos, s.gridLevel, fr, ib, s.opts.Threads, pot.CacheBytes); err != nil {
 		return err

@@ -11,6 +11,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"poise/energy/basis"
 	"strconv"
 	"strings"
 	"time"
@@ -167,7 +168,7 @@ func runModes(cmd *cobra.Command, args []string, lf *levelFlags, f *modesFlags) 
 	case f.assemble != "" && (f.from != "" || len(args) == 1):
 		return usageErr(errors.New("give either --assemble DIR, FILE.xyz or --from MODES.json"))
 	case f.assemble != "":
-		for _, name := range []string{"method", "basis", "charge", "multiplicity", "cartesian", "spherical", "unrestricted", "grid", "dispersion", "max-iterations", "step", "four-point"} {
+		for _, name := range []string{"method", "basis", "charge", "multiplicity", "cartesian", "spherical", "unrestricted", "grid", "dispersion", "fit", "max-iterations", "step", "four-point"} {
 			if changed(name) {
 				return usageErr(fmt.Errorf("--%s does not apply with --assemble: the plan in %s fixes it", name, f.assemble))
 			}
@@ -183,7 +184,7 @@ func runModes(cmd *cobra.Command, args []string, lf *levelFlags, f *modesFlags) 
 	case f.from != "" && len(args) == 1:
 		return usageErr(errors.New("give either FILE.xyz or --from MODES.json, not both"))
 	case f.from != "":
-		for _, name := range []string{"method", "basis", "charge", "multiplicity", "cartesian", "spherical", "unrestricted", "grid", "step", "four-point"} {
+		for _, name := range []string{"method", "basis", "charge", "multiplicity", "cartesian", "spherical", "unrestricted", "grid", "fit", "step", "four-point"} {
 			if changed(name) {
 				return usageErr(fmt.Errorf("--%s does not apply with --from: the level of theory and the Hessian come from %s", name, f.from))
 			}
@@ -304,8 +305,13 @@ func levelTag(s *setup, conv string) string {
 	if s.dispersion != nil {
 		disp = fmt.Sprintf("d3bj(%+v)", *s.dispersion)
 	}
-	return fmt.Sprintf("method=%s basis=%s functions=%s charge=%d multiplicity=%d unrestricted=%v grid=%d scf-gradient=%g dispersion=%s",
+	t := fmt.Sprintf("method=%s basis=%s functions=%s charge=%d multiplicity=%d unrestricted=%v grid=%d scf-gradient=%g dispersion=%s",
 		s.method, s.set.Name, conv, s.mol.Charge, s.mol.Multiplicity, s.opts.Unrestricted, s.gridLevel, s.opts.GradientTolerance, disp)
+	if s.fit != nil {
+		// Only with fitting on, so that points saved without it stay valid.
+		t += " fit=" + s.fit.Name
+	}
+	return t
 }
 
 // angularFunctions says whether d and higher shells are Cartesian or
@@ -345,7 +351,7 @@ func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmet
 	// differences amplify their noise by 1/2h.
 	s.opts.GradientTolerance = freq.SCFGradientTolerance
 	surf, err := gradient.NewSCFSurface(s.mol, gradient.Config{Basis: s.set, Convention: s.conv, Method: s.fn,
-		GridLevel: s.gridLevel, SCF: s.opts, Dispersion: s.dispersion})
+		GridLevel: s.gridLevel, SCF: s.opts, Dispersion: s.dispersion, Fit: s.fit})
 	if err != nil {
 		return nil, usageErr(fmt.Errorf("%s: %w", path, err))
 	}
@@ -433,6 +439,9 @@ func (mc *modesCalc) modesFile(path string, h *freq.Hessian, threads, concurrent
 	}
 	if s.fn.NeedsGrid() {
 		file.Level.GridLevel = s.gridLevel
+	}
+	if s.fit != nil {
+		file.Level.Fit = s.fit.Name
 	}
 	if s.dispersion != nil {
 		file.Level.Dispersion = "d3bj"
@@ -795,5 +804,13 @@ func (plainTicks) Ticks(lo, hi float64) []plot.Tick {
 
 // levelLabel is the level of theory as printed, e.g. "B3LYP-D3(BJ)/6-31G*".
 func levelLabel(l *freq.Level) string {
-	return settle.LevelLabel(l.Method, l.Basis, l.Dispersion != "")
+	label := settle.LevelLabel(l.Method, l.Basis, l.Dispersion != "")
+	if l.Fit != "" {
+		if set, err := basis.Load(l.Fit); err == nil {
+			label += settle.FitLabel(set)
+		} else {
+			label += " (fit: " + l.Fit + ")"
+		}
+	}
+	return label
 }

@@ -420,7 +420,7 @@ func assembleReaction(cmd *cobra.Command, lf *levelFlags, f *reactionFlags) erro
 	if err := f.batch.check(); err != nil {
 		return err
 	}
-	for _, name := range []string{"method", "basis", "charge", "multiplicity", "cartesian", "spherical", "unrestricted", "grid", "dispersion", "max-iterations", "store", "no-store", "plan"} {
+	for _, name := range []string{"method", "basis", "charge", "multiplicity", "cartesian", "spherical", "unrestricted", "grid", "dispersion", "fit", "max-iterations", "store", "no-store", "plan"} {
 		if cmd.Flags().Changed(name) {
 			return usageErr(fmt.Errorf("--%s does not apply with --assemble: the plan in %s fixes it", name, f.assemble))
 		}

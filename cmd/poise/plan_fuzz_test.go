@@ -10,6 +10,7 @@ import (
 // is accepted has consistent tasks.
 func FuzzReadPlan(f *testing.F) {
 	f.Add([]byte(`{"format":"poise-plan","version":1,"kind":"modes","input":"input.xyz","level":{"method":"hf","basis":"sto-3g"},"threads_per_task":1,"step_bohr":0.0025,"tasks":[{"index":0,"label":"a","coordinate":0,"steps":1}]}`))
+	f.Add([]byte(`{"format":"poise-plan","version":1,"kind":"modes","input":"input.xyz","level":{"method":"pbe","basis":"def2-svp","fit":"def2-universal-jfit"},"threads_per_task":1,"step_bohr":0.0025,"tasks":[{"index":0,"label":"a","coordinate":0,"steps":1}]}`))
 	f.Add([]byte(`{"format":"poise-plan","version":1,"kind":"reaction","input":"input/r.reaction","store":"/tmp/s","tasks":[{"index":0,"species":"a","file":"a.xyz"}]}`))
 	f.Add([]byte(`{"format":"poise-plan","version":1,"kind":"modes","input":"../x.xyz","tasks":[{"index":1}]}`))
 	f.Add([]byte(`{"format":"poise-plan","version":2}`))

@@ -31,6 +31,7 @@ type relaxReport struct {
 	Method           string       `json:"method"`
 	LevelOfTheory    string       `json:"level_of_theory"`
 	Basis            string       `json:"basis"`
+	Fit              string       `json:"fit"`
 	Charge           int          `json:"charge"`
 	Multiplicity     int          `json:"multiplicity"`
 	Convergence      string       `json:"convergence"`
@@ -171,6 +172,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 		GridLevel:  s.gridLevel,
 		SCF:        opts,
 		Dispersion: s.dispersion,
+		Fit:        s.fit,
 	})
 	if err != nil {
 		return err
@@ -269,6 +271,7 @@ func runRelax(cmd *cobra.Command, path string, lf *levelFlags, f *relaxFlags) er
 		Formula:          s.mol.Formula(),
 		Method:           s.method,
 		Basis:            s.set.Name,
+		Fit:              s.fitName(),
 		LevelOfTheory:    s.label(),
 		Charge:           s.mol.Charge,
 		Multiplicity:     s.mol.Multiplicity,

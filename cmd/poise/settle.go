@@ -102,13 +102,13 @@ reuses them without any SCF.`,
 // settleLevel is the settle.Level of a prepared setup.
 func settleLevel(s *setup) settle.Level {
 	o := s.opts
-	o.XC, o.XCStart, o.Progress = nil, nil, nil
-	return settle.Level{Basis: s.set, Convention: s.conv, Method: s.fn, GridLevel: s.gridLevel, Dispersion: s.dispersion, SCF: o}
+	o.XC, o.XCStart, o.Progress, o.AuxShells = nil, nil, nil, nil
+	return settle.Level{Basis: s.set, Convention: s.conv, Method: s.fn, GridLevel: s.gridLevel, Dispersion: s.dispersion, Fit: s.fit, SCF: o}
 }
 
 // otherLevel reads METHOD/BASIS for --prerelax or --energy-at: the rest of
-// the level (functions, SCF settings, grid) as for the main level; the
-// dispersion correction too when withDispersion.
+// the level (functions, SCF settings, grid, density fitting) as for the
+// main level; the dispersion correction too when withDispersion.
 func otherLevel(flag, spec string, s *setup, withDispersion bool) (*settle.Level, error) {
 	m, b, ok := strings.Cut(strings.TrimSpace(spec), "/")
 	if !ok || m == "" || b == "" {
@@ -124,6 +124,9 @@ func otherLevel(flag, spec string, s *setup, withDispersion bool) (*settle.Level
 	}
 	if _, err := set.Shells(s.mol, s.conv); err != nil {
 		return nil, usageErr(fmt.Errorf("--%s: %w", flag, err))
+	}
+	if s.fit != nil && s.fit.Role == basis.RoleJFit && fn.ExactExchange() != 0 {
+		return nil, usageErr(fmt.Errorf("--%s %q with --fit %s: the JFIT sets fit only the Coulomb term; give def2-universal-jkfit (or jk) for HF and hybrid functionals", flag, spec, s.fit.Name))
 	}
 	l := settleLevel(s)
 	l.Basis, l.Method, l.Dispersion = set, fn, nil

@@ -72,18 +72,29 @@ type planLevel struct {
 	MaxIterations int    `json:"max_iterations"`
 	Grid          int    `json:"grid"`
 	Dispersion    string `json:"dispersion"`
+	// Fit is the --fit set as given; empty (omitted) for exact integrals,
+	// so that plans written before density fitting existed read the same.
+	Fit string `json:"fit,omitempty"`
 }
 
 func levelOf(lf *levelFlags) planLevel {
 	return planLevel{Method: lf.method, Basis: lf.basisName, Charge: lf.charge, Multiplicity: lf.multiplicity,
 		Cartesian: lf.cartesian, Spherical: lf.spherical, Unrestricted: lf.unrestricted, Memory: lf.memory,
-		MaxIterations: lf.maxIter, Grid: lf.gridLevel, Dispersion: lf.dispersion}
+		MaxIterations: lf.maxIter, Grid: lf.gridLevel, Dispersion: lf.dispersion, Fit: planFit(lf.fit)}
+}
+
+// planFit is the plan's form of a --fit value: empty for exact integrals.
+func planFit(fit string) string {
+	if fitOff(fit) {
+		return ""
+	}
+	return strings.TrimSpace(fit)
 }
 
 func (l planLevel) flags(threads int) *levelFlags {
 	return &levelFlags{method: l.Method, basisName: l.Basis, charge: l.Charge, multiplicity: l.Multiplicity,
 		cartesian: l.Cartesian, spherical: l.Spherical, unrestricted: l.Unrestricted, threads: max(threads, 1),
-		memory: l.Memory, maxIter: l.MaxIterations, gridLevel: l.Grid, dispersion: l.Dispersion}
+		memory: l.Memory, maxIter: l.MaxIterations, gridLevel: l.Grid, dispersion: l.Dispersion, fit: l.Fit}
 }
 
 // planTask is one task: its index (from 0, as Slurm's array indices) and

@@ -70,6 +70,7 @@ type measurement struct {
 type env struct {
 	threads   int
 	molecules string // directory of the input XYZ files
+	fit       bool   // density fitting (RI-JK, def2-universal-JKFIT)
 }
 
 // workload is one benchmark.
@@ -109,6 +110,23 @@ var workloads = []workload{
 		run: threadSpeedup},
 	{name: "aspirin-settle", what: "aspirin (21 atoms) B3LYP/6-31G* settle (stretch goal)", goal: goal{1800, true, "s"},
 		run: func(ctx context.Context, e env) (measurement, error) {
+			return settleWorkload(ctx, e, "aspirin.xyz", e.threads)
+		}},
+	// The same workloads with density fitting (--fit jk): RI-JK in
+	// def2-universal-JKFIT.
+	{name: "benzene-energy-fit", what: "benzene B3LYP/6-31G* energy, RI-JK (--fit jk)", goal: goal{5, true, "s"},
+		run: func(ctx context.Context, e env) (measurement, error) {
+			e.fit = true
+			return energyWorkload(ctx, e, "benzene.xyz", "b3lyp")
+		}},
+	{name: "benzene-settle-fit", what: "benzene B3LYP/6-31G* settle, RI-JK (--fit jk)", goal: goal{180, true, "s"},
+		run: func(ctx context.Context, e env) (measurement, error) {
+			e.fit = true
+			return settleWorkload(ctx, e, "benzene.xyz", e.threads)
+		}},
+	{name: "aspirin-settle-fit", what: "aspirin (21 atoms) B3LYP/6-31G* settle, RI-JK (--fit jk; stretch goal)", goal: goal{1800, true, "s"},
+		run: func(ctx context.Context, e env) (measurement, error) {
+			e.fit = true
 			return settleWorkload(ctx, e, "aspirin.xyz", e.threads)
 		}},
 }
@@ -179,8 +197,9 @@ func readMolecule(e env, file string) (*molecule.Molecule, error) {
 	return m, nil
 }
 
-// level is method/6-31G* with the CLI's defaults.
-func level(method string, threads int) (settle.Level, error) {
+// level is method/6-31G* with the CLI's defaults, density fitted with
+// def2-universal-JKFIT when e.fit.
+func level(method string, e env, threads int) (settle.Level, error) {
 	set, err := basis.Load("6-31g*")
 	if err != nil {
 		return settle.Level{}, err
@@ -189,8 +208,14 @@ func level(method string, threads int) (settle.Level, error) {
 	if err != nil {
 		return settle.Level{}, err
 	}
-	return settle.Level{Basis: set, Convention: basis.Default, Method: fn,
-		SCF: scf.Options{Threads: threads, MemoryBytes: memoryBudget}}, nil
+	l := settle.Level{Basis: set, Convention: basis.Default, Method: fn,
+		SCF: scf.Options{Threads: threads, MemoryBytes: memoryBudget}}
+	if e.fit {
+		if l.Fit, err = basis.Load("def2-universal-jkfit"); err != nil {
+			return settle.Level{}, err
+		}
+	}
+	return l, nil
 }
 
 // countingSurface counts the SCF iterations of every evaluation.
@@ -218,7 +243,7 @@ func newSurface(mol *molecule.Molecule, l settle.Level, iters *atomic.Int64) (gr
 	o := l.SCF
 	o.XC, o.XCStart, o.Guess, o.Progress = nil, nil, nil, nil
 	s, err := gradient.NewSCFSurface(mol, gradient.Config{Basis: l.Basis, Convention: l.Convention, Method: l.Method,
-		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion})
+		GridLevel: l.GridLevel, SCF: o, Dispersion: l.Dispersion, Fit: l.Fit})
 	if err != nil {
 		return nil, err
 	}
@@ -232,7 +257,7 @@ func settleWorkload(ctx context.Context, e env, file string, threads int) (measu
 	if err != nil {
 		return measurement{}, err
 	}
-	lvl, err := level("b3lyp", threads)
+	lvl, err := level("b3lyp", e, threads)
 	if err != nil {
 		return measurement{}, err
 	}
@@ -256,7 +281,7 @@ func energyWorkload(ctx context.Context, e env, file, method string) (measuremen
 	if err != nil {
 		return measurement{}, err
 	}
-	lvl, err := level(method, e.threads)
+	lvl, err := level(method, e, e.threads)
 	if err != nil {
 		return measurement{}, err
 	}
@@ -284,7 +309,7 @@ func gradientRatio(ctx context.Context, e env, file, method string) (measurement
 	if err != nil {
 		return measurement{}, err
 	}
-	lvl, err := level(method, e.threads)
+	lvl, err := level(method, e, e.threads)
 	if err != nil {
 		return measurement{}, err
 	}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"poise/energy/internal/kernel"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -134,7 +135,7 @@ func TestDotProducts(t *testing.T) {
 		for i := range c {
 			c[i] = 99
 		}
-		dotProducts(a, na, b, nb, k, c, ldc)
+		kernel.DotProducts(a, na, b, nb, k, c, ldc)
 		var want mat.Dense
 		if k > 0 {
 			want.Mul(mat.NewDense(na, k, a), mat.NewDense(nb, k, b).T())

@@ -48,14 +48,14 @@
 //     about twice as cheap on a virtual machine.
 //
 // Kernels. Four loops carry nearly all the arithmetic, each in a portable
-// Go version (kernel.go) and, on amd64 processors with AVX2 and FMA, an
-// assembly version (kernel_amd64.s) vectorized four doubles wide and
-// chosen at start-up from the processor's features (golang.org/x/sys/cpu):
-// dotProducts (C = A·Bᵀ, the potential blocks φᵀZ; lanes over the
+// Go version and, on amd64 processors with AVX2 and FMA, an assembly
+// version vectorized four doubles wide and
+// chosen at start-up from the processor's features (golang.org/x/sys/cpu),
+// all in package energy/internal/kernel: DotProducts (C = A·Bᵀ, the potential blocks φᵀZ; lanes over the
 // contraction index, 3×4 register tiles, each element reduced as
-// (lane0+lane1)+(lane2+lane3)), matMul (C = A·B, the density step
+// (lane0+lane1)+(lane2+lane3)), MatMul (C = A·B, the density step
 // U = D φ or L(Lᵀφ); lanes over the columns, 4×12 tiles, the sum over
-// the contraction in order), columnDots (ρ and ∇ρ from U; lanes over the
+// the contraction in order), ColumnDots (ρ and ∇ρ from U; lanes over the
 // points) and expNonPositive (e^x for x ≤ 0, Taylor polynomial of degree
 // 13 after reduction by ln 2; within a few units in the last place of
 // math.Exp). Tails of every dimension use masked loads and stores, and in

@@ -3,6 +3,7 @@ package dft
 import (
 	"context"
 	"math"
+	"poise/energy/internal/kernel"
 	"runtime"
 	"sync"
 
@@ -222,6 +223,17 @@ func CacheBytesFor(memoryBytes int64, nbf int) int64 {
 	return max(memoryBytes/4+max(memoryBytes/2-maxERIBytes(nbf), 0), 1)
 }
 
+// CacheBytesFitted is CacheBytesFor for a density-fitted calculation,
+// which keeps no four-centre integrals: three quarters of the budget less
+// fitBytes, the most the fit holds at once (fit.PeakBytes), but at least
+// the quarter of CacheBytesFor. A budget of 0 gives 0.
+func CacheBytesFitted(memoryBytes, fitBytes int64) int64 {
+	if memoryBytes <= 0 {
+		return 0
+	}
+	return max(memoryBytes/4, memoryBytes/4*3-fitBytes, 1)
+}
+
 // maxERIBytes bounds the memory of the stored integrals of nbf functions:
 // canonical shell quartets of shell pairs p ≥ r hold w_p·w_r values, with
 // Σ_p w_p ≤ P = (nbf² + 15·nbf)/2 over the pairs i ≥ j (shells of at most
@@ -364,7 +376,7 @@ func (rs *radialScratch) primitive(alpha, lim float64) bool {
 		used = used || alpha*r2 <= lim
 	}
 	if used {
-		expNonPositive(rs.arg, rs.ex)
+		kernel.ExpNonPositive(rs.arg, rs.ex)
 	}
 	return used
 }
@@ -496,10 +508,10 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 			for a, fa := range fns {
 				copy(ws.lsub[a*r:a*r+r], f.l[int(fa)*r:int(fa)*r+r])
 			}
-			transpose(ws.lsub, m, r, ws.lsubT)
+			kernel.Transpose(ws.lsub, m, r, ws.lsubT)
 			ws.x = resize(ws.x, r*np)
-			matMul(ws.lsubT, r, phiT, m, np, ws.x)
-			matMul(ws.lsub, m, ws.x, r, np, ws.ut)
+			kernel.MatMul(ws.lsubT, r, phiT, m, np, ws.x)
+			kernel.MatMul(ws.lsub, m, ws.x, r, np, ws.ut)
 		} else {
 			for a, fa := range fns {
 				row := int(fa) * n
@@ -508,16 +520,16 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 					dr[b] = dens[s][row+int(fb)]
 				}
 			}
-			matMul(ws.dsub, m, phiT, m, np, ws.ut)
+			kernel.MatMul(ws.dsub, m, phiT, m, np, ws.ut)
 		}
 		ws.rho[s] = grow(ws.rho[s], np)
-		columnDots(phiT, ws.ut, m, np, ws.rho[s])
+		kernel.ColumnDots(phiT, ws.ut, m, np, ws.rho[s])
 		ws.rhoViews = append(ws.rhoViews, ws.rho[s])
 		var gr [3][]float64
 		if gga {
 			for k := 0; k < 3; k++ {
 				ws.grad[s][k] = grow(ws.grad[s][k], np)
-				columnDots(d1[k], ws.ut, m, np, ws.grad[s][k])
+				kernel.ColumnDots(d1[k], ws.ut, m, np, ws.grad[s][k])
 				g := ws.grad[s][k]
 				for pt := range g {
 					g[pt] *= 2
@@ -553,7 +565,7 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 			for pt, x := range ca {
 				ws.half[pt] = 0.5 * x
 			}
-			zRows(phiT, d1[0], d1[1], d1[2], ws.half, cb[0], cb[1], cb[2], m, np, ws.zt)
+			kernel.ZRows(phiT, d1[0], d1[1], d1[2], ws.half, cb[0], cb[1], cb[2], m, np, ws.zt)
 		} else {
 			for a := 0; a < m; a++ {
 				zr := ws.zt[a*np : a*np+np]
@@ -563,7 +575,7 @@ func (p *Potential) batch(ws *workspace, bi int, dens [][]float64, factors []den
 				}
 			}
 		}
-		dotProducts(phiT, m, ws.zt, m, np, ws.mblk, m)
+		kernel.DotProducts(phiT, m, ws.zt, m, np, ws.mblk, m)
 		vb := res.v[s]
 		for a := 0; a < m; a++ {
 			for b := 0; b <= a; b++ {
@@ -883,16 +895,16 @@ type batchDensities struct {
 // mulD sets out (np×m) to x·D_sub of spin s for a point-major np×m block x.
 func (bd *batchDensities) mulD(s int, x []float64, np, m int, out []float64) {
 	if bd.dsub[s] != nil {
-		dotProducts(x, np, bd.dsub[s], m, m, out, m) // D symmetric
+		kernel.DotProducts(x, np, bd.dsub[s], m, m, out, m) // D symmetric
 		return
 	}
 	r := bd.rank[s]
 	l := bd.lsub[s]
 	lt := make([]float64, r*m)
-	transpose(l, m, r, lt)
+	kernel.Transpose(l, m, r, lt)
 	y := make([]float64, np*r)
-	dotProducts(x, np, lt, r, m, y, r) // x L
-	dotProducts(y, np, l, m, r, out, m)
+	kernel.DotProducts(x, np, lt, r, m, y, r) // x L
+	kernel.DotProducts(y, np, l, m, r, out, m)
 }
 
 // batchDensity forms ρ_s = Σ_μν D_μν φ_μ φ_ν and, when d1 (the first

@@ -55,6 +55,13 @@
 //   - Electron-repulsion integrals and derivatives: see eri.go and deriv.go;
 //     the derivative classes with l ≤ 2 per centre (total l ≤ 6) are
 //     generated straight-line code (deriv_gen.go, go generate).
+//   - Three- and two-centre Coulomb integrals for density fitting
+//     (ThreeCentre; threecentre.go): (ab|P) and (P|Q) as four-centre
+//     integrals with a unit s shell (exponent 0, coefficient 1) beside each
+//     auxiliary shell, through the same Head-Gordon–Pople code, and their
+//     nuclear derivatives through the derivative code (the unit shell's own
+//     derivative is zero). Orbital shells up to l = 5, auxiliary shells up
+//     to l = 5 (def2-universal-JKFIT needs g).
 //
 // Package-level tables (the Boys-function grid, the Cartesian recurrence
 // index table) are read-only data computed once at initialization; the

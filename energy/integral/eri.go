@@ -357,7 +357,14 @@ func basisNCart(l int) int { return (l + 1) * (l + 2) / 2 }
 // may come in any order. The slice belongs to w and is valid until the next
 // call with w.
 func (e *ERIEngine) Quartet(w *ERIWorkspace, i, j, k, l int) []float64 {
-	bra, ket := e.pair(i, j), e.pair(k, l)
+	return e.quartetPairs(w, e.pair(i, j), e.pair(k, l), i, k)
+}
+
+// quartetPairs is Quartet for prepared pairs: bra holds the request's
+// shells (i, ·) and ket (k, ·), in either stored order. ThreeCentre calls
+// it with pairs it prepares itself (an auxiliary shell paired with a unit
+// shell).
+func (e *ERIEngine) quartetPairs(w *ERIWorkspace, bra, ket *eriPair, i, k int) []float64 {
 	swBra, swKet := bra.a != i, ket.a != k // pair stored in the other order
 	swap := ket.key() > bra.key()          // ket computed as the bra
 	if swap {

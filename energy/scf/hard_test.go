@@ -97,27 +97,35 @@ func setupHard(t testing.TB, c hardCase) (*molecule.Molecule, []basis.Shell, scf
 		t.Fatal(err)
 	}
 	opt := scf.Options{Unrestricted: c.unrestricted, Threads: 2}
-	if c.method != "hf" {
-		fn, err := xc.Lookup(c.method)
-		if err != nil {
-			t.Fatal(err)
-		}
-		z := make([]int, len(m.Atoms))
-		pos := make([][3]float64, len(m.Atoms))
-		for i, a := range m.Atoms {
-			z[i], pos[i] = a.Z, a.Position
-		}
-		frame, err := grid.StandardFrame(z, pos)
-		if err != nil {
-			t.Fatal(err)
-		}
-		g, err := grid.New(z, pos, hardGrid, frame, 2)
-		if err != nil {
-			t.Fatal(err)
-		}
-		opt.XC = dft.New(fn, g, integral.NewBasis(sh), 2)
-	}
+	attachXC(t, m, sh, c.method, &opt)
 	return m, sh, opt
+}
+
+// attachXC sets opt.XC to method's functional (nothing for "hf") on the
+// default grid of m in its standard frame.
+func attachXC(t testing.TB, m *molecule.Molecule, sh []basis.Shell, method string, opt *scf.Options) {
+	t.Helper()
+	if method == "hf" {
+		return
+	}
+	fn, err := xc.Lookup(method)
+	if err != nil {
+		t.Fatal(err)
+	}
+	z := make([]int, len(m.Atoms))
+	pos := make([][3]float64, len(m.Atoms))
+	for i, a := range m.Atoms {
+		z[i], pos[i] = a.Z, a.Position
+	}
+	frame, err := grid.StandardFrame(z, pos)
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, err := grid.New(z, pos, hardGrid, frame, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt.XC = dft.New(fn, g, integral.NewBasis(sh), 2)
 }
 
 // hardGrid is the DFT grid level of the hard set: the default one, as the

@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"poise/energy/basis"
+	"poise/energy/fit"
 	"poise/energy/integral"
 	"poise/energy/molecule"
 )
@@ -69,6 +70,12 @@ type Options struct {
 	// Log receives notices about the course of the calculation (fallbacks,
 	// switches); nil discards them.
 	Log func(msg string)
+	// AuxShells, if set, is the auxiliary basis (shells on the same atoms)
+	// in which the Coulomb and exchange terms are density fitted with the
+	// Coulomb metric (RI-JK) instead of computed from four-centre
+	// integrals. A Coulomb-only fitting set (basis.RoleJFit) serves
+	// methods without exact exchange only.
+	AuxShells []basis.Shell
 }
 
 // Iteration describes one SCF cycle, for progress display.
@@ -121,6 +128,13 @@ type Result struct {
 	// integrals kept in memory: 1 in core, 0 integral-direct, in between
 	// semi-direct (the costliest to compute kept, see --memory).
 	StoredIntegralFraction float64
+	// AuxShells is the auxiliary basis of a density-fitted calculation
+	// (Options.AuxShells), nil for four-centre integrals; the analytic
+	// gradient uses the same fit.
+	AuxShells []basis.Shell
+	// Fit is the density fit of the calculation (nil without fitting),
+	// kept so that the analytic gradient need not compute it again.
+	Fit *fit.Fit
 
 	// OrbitalEnergies[s] and Coefficients[s] per spin (one entry for
 	// restricted): energies ascending; coefficients NBF×NMO row-major.
@@ -272,7 +286,7 @@ type problem struct {
 	b            *integral.Basis
 	n, m         int
 	s, h, x      []float64
-	jk           *jkBuilder
+	jk           fockBuilder
 	unrestricted bool
 	na, nb       int
 	nspin        int
@@ -311,7 +325,11 @@ func newProblem(ctx context.Context, mol *molecule.Molecule, shells []basis.Shel
 	if na > p.m {
 		return nil, fmt.Errorf("%d α electrons do not fit in %d linearly independent functions", na, p.m)
 	}
-	p.jk, err = newJKBuilderLog(ctx, p.b, opt.Threads, opt.MemoryBytes, opt.Log)
+	if opt.AuxShells != nil {
+		p.jk, err = newFittedBuilder(ctx, p.b, integral.NewBasis(opt.AuxShells), opt.Threads)
+	} else {
+		p.jk, err = newJKBuilderLog(ctx, p.b, opt.Threads, opt.MemoryBytes, opt.Log)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -362,6 +380,10 @@ func runLadder(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell
 		InCore:           p.jk.InCore(),
 
 		StoredIntegralFraction: p.jk.StoredFraction(),
+		AuxShells:              opt.AuxShells,
+	}
+	if fb, ok := p.jk.(*fittedBuilder); ok {
+		res.Fit = fb.f
 	}
 	note := func(format string, args ...any) {
 		msg := fmt.Sprintf(format, args...)
@@ -716,7 +738,7 @@ func purifyDensity(d, s []float64, n int, occ []float64) []float64 {
 // fockAndEnergy builds the Fock matrices for the densities and returns them
 // with the electronic energy (without nuclear repulsion). It records the
 // energy parts in res.
-func fockAndEnergy(ctx context.Context, jk *jkBuilder, h []float64, dens [][]float64, ax float64, xc XC, unrestricted bool, res *Result) ([][]float64, float64, error) {
+func fockAndEnergy(ctx context.Context, jk fockBuilder, h []float64, dens [][]float64, ax float64, xc XC, unrestricted bool, res *Result) ([][]float64, float64, error) {
 	wantK := ax != 0
 	J, K, err := jk.build(ctx, dens, wantK)
 	if err != nil {

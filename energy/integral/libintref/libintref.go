@@ -217,6 +217,72 @@ func ERIAllUnique(shells []Shell) (count int, checksum float64) {
 	return int(cnt), float64(sum)
 }
 
+// coulombUnit runs lr_coulomb_unit and returns nsets result sets.
+func coulombUnit(deriv, nsets int, shells []Shell) ([][]float64, error) {
+	f, err := flatten(shells)
+	if err != nil {
+		return nil, err
+	}
+	n := 1
+	for _, s := range shells {
+		n *= s.NumFunctions()
+	}
+	out := make([]C.double, nsets*n)
+	errbuf := make([]C.char, 512)
+	rc := C.lr_coulomb_unit(C.int(deriv), C.int(len(shells)),
+		&f.ls[0], &f.pures[0], &f.nprims[0], &f.centers[0], &f.exps[0], &f.coefs[0],
+		&out[0], C.int(len(out)), &errbuf[0], C.int(len(errbuf)))
+	if rc != 0 {
+		return nil, fmt.Errorf("libintref: libint2: %s", C.GoString(&errbuf[0]))
+	}
+	res := make([][]float64, nsets)
+	for k := range res {
+		res[k] = make([]float64, n)
+		for i := range res[k] {
+			res[k][i] = float64(out[k*n+i])
+		}
+	}
+	return res, nil
+}
+
+// ThreeCentre returns (ab|p) = ∫∫ a(1)b(1) r₁₂⁻¹ p(2), row-major over a, b,
+// p, computed by libint2 as the four-centre Coulomb integral (ab|p 1) with
+// its unit shell.
+func ThreeCentre(a, b, p Shell) []float64 {
+	return must(coulombUnit(0, 1, []Shell{a, b, p}))[0]
+}
+
+// TwoCentre returns (p|q), row-major, as libint2's (p 1|q 1).
+func TwoCentre(p, q Shell) []float64 {
+	return must(coulombUnit(0, 1, []Shell{p, q}))[0]
+}
+
+// ThreeCentreDeriv1 returns ∂(ab|p)/∂R: element 3·s+k for shell s = a, b,
+// p and direction k, each row-major like ThreeCentre (libint2's sets for
+// the three real shells of (ab|p 1)).
+func ThreeCentreDeriv1(a, b, p Shell) ([9][]float64, error) {
+	var out [9][]float64
+	r, err := coulombUnit(1, 12, []Shell{a, b, p})
+	if err != nil {
+		return out, err
+	}
+	copy(out[:], r[:9])
+	return out, nil
+}
+
+// TwoCentreDeriv1 returns ∂(p|q)/∂R: element 3·s+k for shell s = p, q and
+// direction k (libint2's sets 0–2 and 6–8 of (p 1|q 1)).
+func TwoCentreDeriv1(p, q Shell) ([6][]float64, error) {
+	var out [6][]float64
+	r, err := coulombUnit(1, 12, []Shell{p, q})
+	if err != nil {
+		return out, err
+	}
+	copy(out[:3], r[0:3])
+	copy(out[3:], r[6:9])
+	return out, nil
+}
+
 // Boys fills out[0..mmax] with libint2's Boys function F_m(t)
 // (Chebyshev interpolation of order 7), a second reference for tests.
 func Boys(mmax int, t float64, out []float64) error {

@@ -257,6 +257,55 @@ extern "C" int lr_eri_all_unique(int nshell, const int *ls, const int *pures,
   }
 }
 
+extern "C" int lr_coulomb_unit(int deriv, int nshell, const int *ls,
+                               const int *pures, const int *nprims,
+                               const double *centers, const double *exps,
+                               const double *coefs, double *out, int outlen,
+                               char *err, int errlen) {
+  try {
+    ensure_initialized();
+    if (nshell != 2 && nshell != 3)
+      throw std::invalid_argument("need 2 or 3 shells");
+    if (deriv < 0 || deriv > 1)
+      throw std::invalid_argument("derivative order must be 0 or 1");
+    auto given =
+        make_shells(nshell, ls, pures, nprims, centers, exps, coefs);
+    const libint2::Shell unit = libint2::Shell::unit();
+    std::vector<libint2::Shell> shells;
+    if (nshell == 3)
+      shells = {given[0], given[1], given[2], unit};
+    else
+      shells = {given[0], unit, given[1], unit};
+    size_t maxnprim = 0;
+    int maxl = 0;
+    for (auto &s : shells) {
+      maxnprim = std::max(maxnprim, s.nprim());
+      maxl = std::max(maxl, s.contr[0].l);
+    }
+    libint2::Engine engine(libint2::Operator::coulomb, maxnprim, maxl, deriv);
+    engine.set_precision(0.0);  // reference values: no primitive screening
+    engine.compute(shells[0], shells[1], shells[2], shells[3]);
+    std::vector<const libint2::Shell *> sh;
+    for (auto &s : shells) sh.push_back(&s);
+    const auto &res = engine.results();
+    size_t n = 1;
+    for (auto &s : shells) n *= s.size();
+    if (static_cast<size_t>(outlen) != res.size() * n)
+      throw std::invalid_argument(
+          "output buffer holds " + std::to_string(outlen) + " values, need " +
+          std::to_string(res.size() * n));
+    for (size_t k = 0; k < res.size(); ++k)
+      convert_set(sh, res[k], out + k * n);
+    return 0;
+  } catch (const std::exception &e) {
+    set_err(err, errlen, e.what());
+    return 1;
+  } catch (...) {
+    set_err(err, errlen, "unknown C++ exception");
+    return 2;
+  }
+}
+
 extern "C" int lr_boys(int mmax, double t, double *out, char *err,
                        int errlen) {
   try {

@@ -41,6 +41,18 @@ int lr_eri_all_unique(int nshell, const int *ls, const int *pures,
                       long long *count, double *checksum, char *err,
                       int errlen);
 
+// lr_coulomb_unit evaluates Coulomb integrals with libint2's unit shell
+// (libint2::Shell::unit(), the constant function 1): for nshell = 3 the
+// three-centre (s0 s1|s2) = (s0 s1|s2 1), for nshell = 2 the two-centre
+// (s0|s1) = (s0 1|s1 1), with geometric derivative order deriv (0 or 1).
+// It writes every result set of the four-centre engine (for deriv = 1 the
+// 12 sets ∂/∂R of the four centres, unit shells included) in poise's
+// conventions to out; return values as lr_compute.
+int lr_coulomb_unit(int deriv, int nshell, const int *ls, const int *pures,
+                    const int *nprims, const double *centers,
+                    const double *exps, const double *coefs, double *out,
+                    int outlen, char *err, int errlen);
+
 // lr_boys fills out[0..mmax] with libint2's Chebyshev-interpolated Boys
 // function F_m(t).
 int lr_boys(int mmax, double t, double *out, char *err, int errlen);

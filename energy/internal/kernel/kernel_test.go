@@ -1,15 +1,10 @@
-package dft
+package kernel
 
 import (
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
-
-	"poise/energy/basis"
-	"poise/energy/grid"
-	"poise/energy/integral"
-	"poise/energy/xc"
 )
 
 // naiveDots is the textbook triple loop for c = A·Bᵀ, with the error bound
@@ -59,19 +54,19 @@ func dotShapes() [][3]int {
 	return shapes
 }
 
-// TestDotProductsKernels compares dotProducts (the AVX2+FMA kernel where
+// TestDotProductsKernels compares DotProducts (the AVX2+FMA kernel where
 // the processor has it) and the portable dotProductsGo with a naive triple
 // loop on random inputs, over all tail shapes and with a leading dimension
 // larger than nb, and checks that the padding of c is left alone.
 func TestDotProductsKernels(t *testing.T) {
-	t.Logf("vector kernels in use: %v", simdKernels)
+	t.Logf("vector kernels in use: %v", simd)
 	r := rand.New(rand.NewPCG(1, 2))
 	const pad = 3
 	const sentinel = 12345.0
 	kernels := []struct {
 		name string
 		f    func(a []float64, na int, b []float64, nb int, k int, c []float64, ldc int)
-	}{{"dispatch", dotProducts}, {"go", dotProductsGo}}
+	}{{"dispatch", DotProducts}, {"go", dotProductsGo}}
 	for _, sh := range dotShapes() {
 		na, nb, k := sh[0], sh[1], sh[2]
 		a := randomSlice(r, na*k)
@@ -127,11 +122,11 @@ func TestDotProductsElementwise(t *testing.T) {
 		a := randomSlice(r, na*k)
 		b := randomSlice(r, nb*k)
 		full := make([]float64, na*nb)
-		dotProducts(a, na, b, nb, k, full, nb)
+		DotProducts(a, na, b, nb, k, full, nb)
 		for i := 0; i < na; i++ {
 			for j := 0; j < nb; j++ {
 				one := make([]float64, 1)
-				dotProducts(a[i*k:i*k+k], 1, b[j*k:j*k+k], 1, k, one, 1)
+				DotProducts(a[i*k:i*k+k], 1, b[j*k:j*k+k], 1, k, one, 1)
 				if one[0] != full[i*nb+j] {
 					t.Fatalf("%v: c[%d][%d] = %.17g in the full product, %.17g alone", sh, i, j, full[i*nb+j], one[0])
 				}
@@ -140,7 +135,7 @@ func TestDotProductsElementwise(t *testing.T) {
 	}
 }
 
-// TestColumnDotsKernels compares columnDots with columnDotsGo and a naive
+// TestColumnDotsKernels compares ColumnDots with columnDotsGo and a naive
 // loop for every tail of the 16- and 4-point blocks.
 func TestColumnDotsKernels(t *testing.T) {
 	r := rand.New(rand.NewPCG(5, 6))
@@ -148,10 +143,10 @@ func TestColumnDotsKernels(t *testing.T) {
 		for np := 0; np <= 41; np++ {
 			x := randomSlice(r, m*np)
 			y := randomSlice(r, m*np)
-			for name, f := range map[string]func(x, y []float64, m, np int, out []float64){"dispatch": columnDots, "go": columnDotsGo} {
+			for name, f := range map[string]func(x, y []float64, m, np int, out []float64){"dispatch": ColumnDots, "go": columnDotsGo} {
 				out := make([]float64, np+2)
 				for i := range out {
-					out[i] = 7 // columnDots overwrites, never accumulates
+					out[i] = 7 // ColumnDots overwrites, never accumulates
 				}
 				f(x, y, m, np, out)
 				for p := 0; p < np; p++ {
@@ -172,7 +167,7 @@ func TestColumnDotsKernels(t *testing.T) {
 	}
 }
 
-// TestMatMulKernels compares matMul (the AVX2+FMA kernel where the
+// TestMatMulKernels compares MatMul (the AVX2+FMA kernel where the
 // processor has it) and the portable matMulGo with a naive triple loop on
 // random inputs, for every tail of the 4×12 tiles and the masked columns,
 // checks that nothing past c is written, and that every element equals,
@@ -193,7 +188,7 @@ func TestMatMulKernels(t *testing.T) {
 		m, n, k := sh[0], sh[1], sh[2]
 		a := randomSlice(r, m*k)
 		b := randomSlice(r, k*n)
-		for name, f := range map[string]func(a []float64, m int, b []float64, k, n int, c []float64){"dispatch": matMul, "go": matMulGo} {
+		for name, f := range map[string]func(a []float64, m int, b []float64, k, n int, c []float64){"dispatch": MatMul, "go": matMulGo} {
 			c := make([]float64, m*n+2)
 			for i := range c {
 				c[i] = sentinel
@@ -233,7 +228,7 @@ func TestMatMulKernels(t *testing.T) {
 	}
 }
 
-// TestExpNonPositive compares expNonPositive with math.Exp on random and
+// TestExpNonPositive compares ExpNonPositive with math.Exp on random and
 // special arguments in [−708, 0] (within 4 units in the last place: the
 // vector kernel rounds differently) and checks the 0 below −708 and that
 // nothing past the end is written.
@@ -253,7 +248,7 @@ func TestExpNonPositive(t *testing.T) {
 	for n := 0; n <= len(x); n += 1 + n/3 {
 		out := make([]float64, n+1)
 		out[n] = 42
-		expNonPositive(x[:n], out)
+		ExpNonPositive(x[:n], out)
 		for i, v := range x[:n] {
 			if v < -708 {
 				if out[i] != 0 {
@@ -275,7 +270,7 @@ func TestExpNonPositive(t *testing.T) {
 // ulp is the spacing of the floating-point numbers at x (x > 0).
 func ulp(x float64) float64 { return math.Nextafter(x, math.Inf(1)) - x }
 
-// TestZRowsKernels compares zRows (the AVX2+FMA kernel where the
+// TestZRowsKernels compares ZRows (the AVX2+FMA kernel where the
 // processor has it) and zRowsGo with the formula written out, for every
 // tail of the four-point vectors, and checks nothing past z is written.
 func TestZRowsKernels(t *testing.T) {
@@ -284,7 +279,7 @@ func TestZRowsKernels(t *testing.T) {
 		for np := 0; np <= 13; np++ {
 			phi, gx, gy, gz := randomSlice(r, m*np), randomSlice(r, m*np), randomSlice(r, m*np), randomSlice(r, m*np)
 			half, bx, by, bz := randomSlice(r, np), randomSlice(r, np), randomSlice(r, np), randomSlice(r, np)
-			for name, f := range map[string]func(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64){"dispatch": zRows, "go": zRowsGo} {
+			for name, f := range map[string]func(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64){"dispatch": ZRows, "go": zRowsGo} {
 				z := make([]float64, m*np+1)
 				z[m*np] = 5
 				f(phi, gx, gy, gz, half, bx, by, bz, m, np, z)
@@ -328,7 +323,7 @@ func BenchmarkDotProducts(b *testing.B) {
 		for _, kn := range []struct {
 			name string
 			f    func(a []float64, na int, b []float64, nb int, k int, c []float64, ldc int)
-		}{{"dispatch", dotProducts}, {"go", dotProductsGo}} {
+		}{{"dispatch", DotProducts}, {"go", dotProductsGo}} {
 			b.Run(fmt.Sprintf("%s/%s", sh.name, kn.name), func(b *testing.B) {
 				flops := 2 * float64(sh.na*sh.nb*sh.k)
 				for b.Loop() {
@@ -340,7 +335,7 @@ func BenchmarkDotProducts(b *testing.B) {
 	}
 }
 
-// BenchmarkExp times expNonPositive on 256 arguments (one batch).
+// BenchmarkExp times ExpNonPositive on 256 arguments (one batch).
 func BenchmarkExp(b *testing.B) {
 	r := rand.New(rand.NewPCG(15, 16))
 	x := make([]float64, 256)
@@ -350,7 +345,7 @@ func BenchmarkExp(b *testing.B) {
 	out := make([]float64, len(x))
 	b.Run("dispatch", func(b *testing.B) {
 		for b.Loop() {
-			expNonPositive(x, out)
+			ExpNonPositive(x, out)
 		}
 	})
 	b.Run("go", func(b *testing.B) {
@@ -375,7 +370,7 @@ func BenchmarkMatMul(b *testing.B) {
 		for _, kn := range []struct {
 			name string
 			f    func(a []float64, m int, b []float64, k, n int, c []float64)
-		}{{"dispatch", matMul}, {"go", matMulGo}} {
+		}{{"dispatch", MatMul}, {"go", matMulGo}} {
 			b.Run(sh.name+"/"+kn.name, func(b *testing.B) {
 				flops := 2 * float64(sh.m*sh.n*sh.k)
 				for b.Loop() {
@@ -383,150 +378,6 @@ func BenchmarkMatMul(b *testing.B) {
 				}
 				b.ReportMetric(flops*float64(b.N)/b.Elapsed().Seconds()/1e9, "Gflop/s")
 			})
-		}
-	}
-}
-
-// TestEvalDiagonalMatchesGeneral checks the row-by-row evaluation of
-// shells with a diagonal transform against the general point-by-point
-// path, for l = 0…3 with and without derivatives, including points where
-// the radial part vanishes.
-func TestEvalDiagonalMatchesGeneral(t *testing.T) {
-	r := rand.New(rand.NewPCG(17, 18))
-	const np = 37
-	for l := 0; l <= 3; l++ {
-		for _, gga := range []bool{false, true} {
-			comps := integral.CartesianExponents(l)
-			nc := len(comps)
-			trans := make([]float64, nc*nc)
-			for c := 0; c < nc; c++ {
-				trans[c*nc+c] = 0.5 + r.Float64()
-			}
-			bx, by, bz := randomSlice(r, np), randomSlice(r, np), randomSlice(r, np)
-			center := [3]float64{0.1, -0.2, 0.3}
-			nv := 1
-			if gga {
-				nv = 4
-			}
-			var outs [2][]float64
-			for k := range outs {
-				ws := &workspace{}
-				rs := ws.radial(np)
-				rr := rand.New(rand.NewPCG(19, uint64(l)))
-				for pt := 0; pt < np; pt++ {
-					rs.f0[pt], rs.f1[pt] = rr.NormFloat64(), rr.NormFloat64()
-					if pt%7 == 3 {
-						rs.f0[pt], rs.f1[pt] = 1e-301, -1e-302
-					}
-				}
-				out := make([]float64, nv*nc*np)
-				if k == 0 {
-					evalDiagonal(out, ws, rs, bx, by, bz, center, comps, trans, 0, np, nc, gga)
-				} else {
-					evalGeneral(out, ws, rs, bx, by, bz, center, comps, trans, nc, 0, np, nc, gga)
-				}
-				outs[k] = out
-			}
-			for i, want := range outs[1] {
-				got := outs[0][i]
-				if math.Abs(got-want) > 1e-14*math.Max(1, math.Abs(want)) {
-					t.Fatalf("l=%d gga=%v: element %d (block %d, function %d, point %d) = %.17g, general %.17g",
-						l, gga, i, i/(nc*np), i/np%nc, i%np, got, want)
-				}
-			}
-		}
-	}
-}
-
-// TestFunctionDerivativesConsistent checks the two evaluators of the basis
-// functions against each other on the points of a water grid: the values
-// and first derivatives of the gradient's evaluator (point-major, with
-// second derivatives) against those of the Kohn–Sham build's evaluator
-// (function-major), and the second derivatives against central
-// differences of the first (step 1e-4 bohr), for a basis with Cartesian
-// d functions (6-31G*) and one with spherical d functions (cc-pVDZ).
-func TestFunctionDerivativesConsistent(t *testing.T) {
-	m := build(t, water, 0, 1)
-	fn, err := xc.Lookup("b3lyp")
-	if err != nil {
-		t.Fatal(err)
-	}
-	z := make([]int, len(m.Atoms))
-	pos := make([][3]float64, len(m.Atoms))
-	for i, a := range m.Atoms {
-		z[i], pos[i] = a.Z, a.Position
-	}
-	g, err := grid.New(z, pos, 1, grid.IdentityFrame(), 1)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, name := range []string{"6-31g*", "cc-pvdz"} {
-		set, err := basis.Load(name)
-		if err != nil {
-			t.Fatal(err)
-		}
-		sh, err := set.Shells(m, basis.Default)
-		if err != nil {
-			t.Fatal(err)
-		}
-		b := integral.NewBasis(sh)
-		p := New(fn, g, b, 1)
-		for _, bi := range []int{0, len(g.Batches) / 3, len(g.Batches) - 1} {
-			bt := g.Batches[bi]
-			np := bt.End - bt.Start
-			shells := p.batchShells[bi]
-			mAll := 0
-			for _, si := range shells {
-				mAll += b.Shells[si].NumFunctions()
-			}
-			ref := make([]float64, 4*mAll*np)
-			p.evalFunctions(ref, &workspace{}, bt.Start, np, shells, mAll, true)
-			eval := func(gx, gy, gz []float64) *gradWorkspace {
-				ws := &gradWorkspace{}
-				ws.phi = grow(ws.phi, np*mAll)
-				for k := range ws.d1 {
-					ws.d1[k] = grow(ws.d1[k], np*mAll)
-				}
-				for k := range ws.d2 {
-					ws.d2[k] = grow(ws.d2[k], np*mAll)
-				}
-				evalFunctionDerivatives(b, ws, bt.Start, np, shells, mAll, true, gx, gy, gz)
-				return ws
-			}
-			ws := eval(g.X, g.Y, g.Z)
-			for f := 0; f < mAll; f++ {
-				for pt := 0; pt < np; pt++ {
-					got := [4]float64{ws.phi[pt*mAll+f], ws.d1[0][pt*mAll+f], ws.d1[1][pt*mAll+f], ws.d1[2][pt*mAll+f]}
-					for k := 0; k < 4; k++ {
-						want := ref[(k*mAll+f)*np+pt]
-						if math.Abs(got[k]-want) > 1e-12*math.Max(1, math.Abs(want)) {
-							t.Fatalf("%s batch %d function %d point %d: block %d %.17g, Kohn–Sham evaluator %.17g", name, bi, f, pt, k, got[k], want)
-						}
-					}
-				}
-			}
-			// Second derivatives: ∂_j(∂_kφ) by central differences.
-			const h = 1e-4
-			packed := [3][3]int{{0, 1, 2}, {1, 3, 4}, {2, 4, 5}}
-			for j := 0; j < 3; j++ {
-				shift := func(d float64) *gradWorkspace {
-					c := [3][]float64{append([]float64(nil), g.X...), append([]float64(nil), g.Y...), append([]float64(nil), g.Z...)}
-					for pt := bt.Start; pt < bt.End; pt++ {
-						c[j][pt] += d
-					}
-					return eval(c[0], c[1], c[2])
-				}
-				plus, minus := shift(h), shift(-h)
-				for k := 0; k < 3; k++ {
-					for i := 0; i < np*mAll; i++ {
-						fd := (plus.d1[k][i] - minus.d1[k][i]) / (2 * h)
-						got := ws.d2[packed[j][k]][i]
-						if math.Abs(got-fd) > 1e-6*math.Max(1, math.Abs(fd)) {
-							t.Fatalf("%s batch %d element %d: ∂%d∂%dφ = %.12g, central difference %.12g", name, bi, i, j, k, got, fd)
-						}
-					}
-				}
-			}
 		}
 	}
 }

@@ -1,4 +1,4 @@
-package dft
+package kernel
 
 import "math"
 
@@ -8,7 +8,7 @@ import "math"
 // of c so that each loaded element serves several products (eight
 // accumulators, which the amd64 and arm64 register files hold), and sums
 // every element in the same order whatever the tile, so the result depends
-// only on the inputs. It is the portable kernel behind dotProducts
+// only on the inputs. It is the portable kernel behind DotProducts
 // (kernel_amd64.go, kernel_other.go).
 func dotProductsGo(a []float64, na int, b []float64, nb int, k int, c []float64, ldc int) {
 	if na == 0 || nb == 0 {
@@ -83,7 +83,7 @@ func dotProductsGo(a []float64, na int, b []float64, nb int, k int, c []float64,
 }
 
 // columnDotsGo sets out[p] = Σ_a x[a·np+p] y[a·np+p] for two function-major
-// m×np blocks, adding the rows in order. It is the portable kernel behind columnDots.
+// m×np blocks, adding the rows in order. It is the portable kernel behind ColumnDots.
 func columnDotsGo(x, y []float64, m, np int, out []float64) {
 	out = out[:np]
 	clear(out)
@@ -98,7 +98,7 @@ func columnDotsGo(x, y []float64, m, np int, out []float64) {
 
 // matMulGo sets c (m×n) = a (m×k) · b (k×n), all three row-major and
 // contiguous, adding the k products of every element in order. It is the
-// portable kernel behind matMul.
+// portable kernel behind MatMul.
 func matMulGo(a []float64, m int, b []float64, k, n int, c []float64) {
 	for i := 0; i < m; i++ {
 		ci := c[i*n : i*n+n]
@@ -115,7 +115,7 @@ func matMulGo(a []float64, m int, b []float64, k, n int, c []float64) {
 
 // expNonPositiveGo sets out[i] = e^{x[i]} for x[i] ≤ 0, with values below
 // −708 (whose exponential is subnormal) giving 0, by math.Exp. It is the
-// portable kernel behind expNonPositive.
+// portable kernel behind ExpNonPositive.
 func expNonPositiveGo(x, out []float64) {
 	out = out[:len(x)]
 	for i, v := range x {
@@ -129,7 +129,7 @@ func expNonPositiveGo(x, out []float64) {
 
 // zRowsGo sets z[a·np+p] = half[p]·φ[a·np+p] + (bx[p]·gx[a·np+p] +
 // by[p]·gy[a·np+p] + bz[p]·gz[a·np+p]) for m function-major rows of np
-// points. It is the portable kernel behind zRows.
+// points. It is the portable kernel behind ZRows.
 func zRowsGo(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64) {
 	half, bx, by, bz = half[:np], bx[:np], by[:np], bz[:np]
 	for a := 0; a < m; a++ {
@@ -142,9 +142,9 @@ func zRowsGo(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64
 	}
 }
 
-// transpose sets dst (cols×rows) to the transpose of the row-major
+// Transpose sets dst (cols×rows) to the transpose of the row-major
 // rows×cols matrix src.
-func transpose(src []float64, rows, cols int, dst []float64) {
+func Transpose(src []float64, rows, cols int, dst []float64) {
 	const tile = 32
 	for r0 := 0; r0 < rows; r0 += tile {
 		r1 := min(r0+tile, rows)
