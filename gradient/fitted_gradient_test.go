@@ -27,20 +27,22 @@ func TestFittedAnalyticVersusCentralDifferences(t *testing.T) {
 		basis  string
 		tol    float64
 		coords []int
+		aux    string
 	}{
-		{"RHF water 6-31G*", waterDistorted, 1, "hf", "6-31g*", 1e-6, nil},
-		{"UHF OH radical 3-21G", hydroxyl, 2, "hf", "3-21g", 1e-6, nil},
-		{"RKS B3LYP water 3-21G", waterDistorted, 1, "b3lyp", "3-21g", 1e-5, []int{0, 4, 8}},
+		{"RHF water 6-31G*", waterDistorted, 1, "hf", "6-31g*", 1e-6, nil, "def2-universal-jkfit"},
+		{"UHF OH radical 3-21G", hydroxyl, 2, "hf", "3-21g", 1e-6, nil, "def2-universal-jkfit"},
+		{"RKS B3LYP water 3-21G", waterDistorted, 1, "b3lyp", "3-21g", 1e-5, []int{0, 4, 8}, "def2-universal-jkfit"},
+		{"RKS PBE water 3-21G, Coulomb-only fit", waterDistorted, 1, "pbe", "3-21g", 1e-5, []int{2, 6}, "def2-universal-jfit"},
 	}
 	if testing.Short() {
 		cases = cases[:1]
 	}
-	aux, err := basis.Load("def2-universal-jkfit")
-	if err != nil {
-		t.Fatal(err)
-	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
+			aux, err := basis.Load(c.aux)
+			if err != nil {
+				t.Fatal(err)
+			}
 			m := makeMol(t, c.atoms, 0, c.mult)
 			set, err := basis.Load(c.basis)
 			if err != nil {
