@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"poise/energy/basis"
+	"poise/energy/molecule"
 	"poise/energy/xc"
 )
 
@@ -103,7 +104,7 @@ func TestFitShellsFollowGeometry(t *testing.T) {
 			m := water.Clone()
 			m.Atoms[1].Position[0] += 0.3
 			m.Atoms[2].Position[2] -= 0.2
-			aux, err := s.auxShells(m)
+			aux, err := FitShells(s.cfg.Fit, m)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -140,5 +141,27 @@ func TestFitShellsFollowGeometry(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// TestFitShellsAngularMomentum: def2-universal-JKFIT carries l = 6
+// functions for Sc–Zn (the published set, as embedded), beyond the
+// integrals' l = 5; asking for it is an error naming the set and the
+// element, not a panic.
+func TestFitShellsAngularMomentum(t *testing.T) {
+	jk := loadSet(t, "def2-universal-jkfit")
+	fe := &molecule.Molecule{Atoms: []molecule.Atom{{Z: 26, Symbol: "Fe", Mass: molecule.MostAbundantMass(26)}}}
+	_, err := FitShells(jk, fe)
+	if err == nil {
+		t.Fatal("l = 6 fitting functions accepted")
+	}
+	for _, w := range []string{"def2-universal-JKFIT", "Fe", "6"} {
+		if !strings.Contains(err.Error(), w) {
+			t.Errorf("error %q does not say %q", err, w)
+		}
+	}
+	// The same set serves the lighter elements.
+	if _, err := FitShells(jk, &molecule.Molecule{Atoms: []molecule.Atom{{Z: 8, Symbol: "O", Mass: molecule.MostAbundantMass(8)}}}); err != nil {
+		t.Errorf("oxygen: %v", err)
 	}
 }

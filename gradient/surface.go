@@ -128,17 +128,40 @@ func CheckFit(fit *basis.Set, method *xc.Functional, mol *molecule.Molecule) err
 			if method != nil {
 				name = method.Name()
 			}
-			return fmt.Errorf("gradient: fitting set %s fits only the Coulomb term, and %s has exact exchange: give a Coulomb-and-exchange (JKFIT) fitting set", fit.Name, name)
+			return fmt.Errorf("the fitting set %s fits only the Coulomb term, and %s has exact exchange: give a Coulomb-and-exchange set such as def2-universal-JKFIT", fit.Name, name)
 		}
 	default:
-		return fmt.Errorf("gradient: %s is not a density-fitting set (its role is %q): give a JKFIT or JFIT set", fit.Name, fit.Role)
+		return fmt.Errorf("%s is an orbital basis set, not a density-fitting set (role %q): give a JKFIT or JFIT set such as def2-universal-JKFIT", fit.Name, fit.Role)
 	}
 	if mol != nil {
-		if _, err := fit.Shells(mol, basis.Default); err != nil {
-			return fmt.Errorf("gradient: fitting set: %w", err)
+		if _, err := FitShells(fit, mol); err != nil {
+			return err
 		}
 	}
 	return nil
+}
+
+// FitShells returns the shells of the fitting set fit on mol's atoms (nil
+// for a nil fit), in the set's own (spherical) functions whatever the
+// orbital basis's convention. An element the set lacks (an error wrapping
+// *basis.MissingElementError), or shells of higher angular momentum than
+// the integrals support (the def2-universal-JKFIT sets of Sc–Zn have
+// l = 6), is an error naming the set and the element.
+func FitShells(fit *basis.Set, mol *molecule.Molecule) ([]basis.Shell, error) {
+	if fit == nil {
+		return nil, nil
+	}
+	sh, err := fit.Shells(mol, basis.Default)
+	if err != nil {
+		return nil, fmt.Errorf("fitting set: %w", err)
+	}
+	for _, s := range sh {
+		if s.L > integral.MaxShellL {
+			return nil, fmt.Errorf("the fitting set %s has functions of angular momentum %d for %s, above the %d poise's integrals support: give another fitting set, or none",
+				fit.Name, s.L, molecule.Symbol(mol.Atoms[s.Atom].Z), integral.MaxShellL)
+		}
+	}
+	return sh, nil
 }
 
 // SCFSurface is the Surface of a molecule at a level of theory, computed
@@ -187,7 +210,7 @@ func NewSCFSurface(mol *molecule.Molecule, cfg Config) (*SCFSurface, error) {
 		return nil, err
 	}
 	if err := CheckFit(cfg.Fit, cfg.Method, m); err != nil {
-		return nil, err
+		return nil, fmt.Errorf("gradient: %w", err)
 	}
 	_, nbf := basis.Offsets(shells)
 	s := &SCFSurface{mol: m, cfg: cfg, nbf: nbf}
@@ -431,7 +454,7 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 	}
 	opts.Guess = guess
 	opts.XC, opts.XCStart = nil, nil
-	if opts.AuxShells, err = s.auxShells(m); err != nil {
+	if opts.AuxShells, err = FitShells(s.cfg.Fit, m); err != nil {
 		return nil, err
 	}
 	var pot *dft.Potential
@@ -443,11 +466,7 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		}
 		ib := integral.NewBasis(shells)
 		pot = dft.New(fn, g, ib, threads)
-		pot.CacheBytes = dft.CacheBytesFor(opts.MemoryBytes, ib.NBF)
-		if opts.AuxShells != nil {
-			_, naux := basis.Offsets(opts.AuxShells)
-			pot.CacheBytes = dft.CacheBytesFitted(opts.MemoryBytes, fit.PeakBytes(ib.NBF, naux))
-		}
+		pot.CacheBytes = XCCacheBytes(opts.MemoryBytes, ib.NBF, opts.AuxShells)
 		opts.XC = pot
 		if guess == nil {
 			if opts.XCStart, err = StartXC(fn, z, pos, s.cfg.GridLevel, s.frame, ib, threads, pot.CacheBytes); err != nil {
@@ -492,14 +511,16 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 	return c, nil
 }
 
-// auxShells is the auxiliary basis of density fitting at m's geometry
-// (nil without fitting). Fitting sets are defined in spherical functions:
-// they keep their own convention whatever the orbital basis's is.
-func (s *SCFSurface) auxShells(m *molecule.Molecule) ([]basis.Shell, error) {
-	if s.cfg.Fit == nil {
-		return nil, nil
+// XCCacheBytes is the share of a memory budget that the stored
+// basis-function values of a DFT grid may take in an SCF of nbf functions:
+// dft.CacheBytesFor with four-centre integrals, dft.CacheBytesFitted with
+// the density fit of aux (non-nil), which keeps none of them.
+func XCCacheBytes(memoryBytes int64, nbf int, aux []basis.Shell) int64 {
+	if aux == nil {
+		return dft.CacheBytesFor(memoryBytes, nbf)
 	}
-	return s.cfg.Fit.Shells(m, basis.Default)
+	_, naux := basis.Offsets(aux)
+	return dft.CacheBytesFitted(memoryBytes, fit.PeakBytes(nbf, naux))
 }
 
 // orbitalGap is the smallest HOMO–LUMO gap over the spins of res (0 when

@@ -6,11 +6,11 @@ import (
 	"io"
 	"math"
 	"os"
-	"poise/energy/basis"
 	"strings"
 
 	"github.com/spf13/cobra"
 
+	"poise/energy/basis"
 	"poise/energy/scf"
 	"poise/energy/units"
 )

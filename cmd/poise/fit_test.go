@@ -31,9 +31,9 @@ func TestLoadFit(t *testing.T) {
 		{"def2-universal-jfit", "pbe", "def2-universal-JFIT", nil},
 		{"def2jfit", "blyp", "def2-universal-JFIT", nil},
 		{"def2jfit", "lda", "def2-universal-JFIT", nil},
-		{"def2jfit", "hf", "", []string{"fit only the Coulomb term", "def2-universal-jkfit (or jk)", "hf"}},
-		{"def2-universal-jfit", "b3lyp", "", []string{"fit only the Coulomb term", "def2-universal-jkfit (or jk)"}},
-		{"def2jfit", "pbe0", "", []string{"fit only the Coulomb term"}},
+		{"def2jfit", "hf", "", []string{"fits only the Coulomb term", "def2-universal-JKFIT", "jk", "hf"}},
+		{"def2-universal-jfit", "b3lyp", "", []string{"fits only the Coulomb term", "def2-universal-JKFIT", "b3lyp"}},
+		{"def2jfit", "pbe0", "", []string{"fits only the Coulomb term"}},
 		{"def2-svp", "hf", "", []string{"def2-SVP", "orbital basis set", "jk"}},
 		{"sto-3g", "b3lyp", "", []string{"STO-3G", "orbital basis set"}},
 		{"nonsense", "hf", "", []string{"--fit", "unknown basis set", "none, jk"}},
@@ -119,8 +119,8 @@ func TestFitUsageErrorsCLI(t *testing.T) {
 			msg  string
 		}{
 			{[]string{"--method", "hf", "--fit", "def2-svp"}, "orbital basis set"},
-			{[]string{"--method", "hf", "--fit", "def2-universal-jfit"}, "the JFIT sets fit only the Coulomb term; give def2-universal-jkfit (or jk) for HF and hybrid functionals"},
-			{[]string{"--method", "b3lyp", "--fit", "def2jfit"}, "the JFIT sets fit only the Coulomb term"},
+			{[]string{"--method", "hf", "--fit", "def2-universal-jfit"}, "fits only the Coulomb term, and hf has exact exchange: give a Coulomb-and-exchange set such as def2-universal-JKFIT"},
+			{[]string{"--method", "b3lyp", "--fit", "def2jfit"}, "fits only the Coulomb term"},
 			{[]string{"--method", "hf", "--fit", "nosuchset"}, "unknown basis set"},
 		} {
 			t.Run(cmd+" "+strings.Join(tc.args, " "), func(t *testing.T) {
@@ -136,6 +136,14 @@ func TestFitUsageErrorsCLI(t *testing.T) {
 					t.Errorf("message %q lacks %q", stderr, tc.msg)
 				}
 			})
+		}
+	}
+	// A Coulomb-only fit serves PBE, but not an HF level used beside it.
+	for _, flag := range []string{"--prerelax", "--energy-at"} {
+		args := []string{"settle", in, "--method", "pbe", "--basis", "sto-3g", "--fit", "def2jfit", "--threads", "1", "--no-store", flag, "hf/sto-3g"}
+		_, stderr, code, _ := execCLI(t, false, args...)
+		if code != exitUsage || !strings.Contains(stderr, "fits only the Coulomb term") {
+			t.Errorf("%s hf/sto-3g with a JFIT fit: exit %d, want %d with the reason\n%s", flag, code, exitUsage, stderr)
 		}
 	}
 }

@@ -17,7 +17,6 @@ import (
 	"poise/energy/basis"
 	"poise/energy/dft"
 	"poise/energy/dispersion"
-	"poise/energy/fit"
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/molecule"
@@ -164,14 +163,8 @@ func loadFit(name string, fn *xc.Functional) (*basis.Set, error) {
 	if err != nil {
 		return nil, usageErr(fmt.Errorf("--fit: %w; give none, jk, or a fitting set (JKFIT or JFIT)", err))
 	}
-	switch set.Role {
-	case basis.RoleJKFit:
-	case basis.RoleJFit:
-		if fn.ExactExchange() != 0 {
-			return nil, usageErr(fmt.Errorf("--fit %s with --method %s: the JFIT sets fit only the Coulomb term; give def2-universal-jkfit (or jk) for HF and hybrid functionals", name, fn.Name()))
-		}
-	default:
-		return nil, usageErr(fmt.Errorf("--fit %s: %s is an orbital basis set, not a density-fitting set; give jk (def2-universal-JKFIT), a fitting set from 'poise basis list', or none", name, set.Name))
+	if err := gradient.CheckFit(set, fn, nil); err != nil {
+		return nil, usageErr(fmt.Errorf("--fit %s with --method %s: %w (jk is short for def2-universal-JKFIT; none turns fitting off)", name, fn.Name(), err))
 	}
 	return set, nil
 }
@@ -288,10 +281,7 @@ func (f *levelFlags) prepare(path string) (*setup, error) {
 // convention whatever --cartesian or --spherical say. An element the set
 // lacks is a usage error naming it and the set.
 func fitShells(path string, fit *basis.Set, mol *molecule.Molecule) ([]basis.Shell, error) {
-	if fit == nil {
-		return nil, nil
-	}
-	aux, err := fit.Shells(mol, basis.Default)
+	aux, err := gradient.FitShells(fit, mol)
 	if err != nil {
 		return nil, usageErr(fmt.Errorf("%s: --fit: %w", path, err))
 	}
@@ -327,11 +317,7 @@ func (s *setup) attachXC(frame *grid.Frame) error {
 	s.grid = g
 	ib := integral.NewBasis(s.shells)
 	pot := dft.New(s.fn, g, ib, s.opts.Threads)
-	pot.CacheBytes = dft.CacheBytesFor(s.memBytes, ib.NBF)
-	if s.opts.AuxShells != nil {
-		_, naux := basis.Offsets(s.opts.AuxShells)
-		pot.CacheBytes = dft.CacheBytesFitted(s.memBytes, fit.PeakBytes(ib.NBF, naux))
-	}
+	pot.CacheBytes = gradient.XCCacheBytes(s.memBytes, ib.NBF, s.opts.AuxShells)
 	s.opts.XC = pot
 	if s.opts.XCStart, err = gradient.StartXC(s.fn, z, pos, s.gridLevel, fr, ib, s.opts.Threads, pot.CacheBytes); err != nil {
 		return err

@@ -11,7 +11,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"poise/energy/basis"
 	"strconv"
 	"strings"
 	"time"
@@ -25,6 +24,7 @@ import (
 	_ "gonum.org/v1/plot/vg/vgimg" // registers png
 	_ "gonum.org/v1/plot/vg/vgsvg" // registers svg
 
+	"poise/energy/basis"
 	"poise/energy/molecule"
 	"poise/energy/scf"
 	"poise/energy/units"

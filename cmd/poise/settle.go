@@ -21,6 +21,7 @@ import (
 	"poise/energy/units"
 	"poise/energy/xc"
 	"poise/freq"
+	"poise/gradient"
 	"poise/internal/atomicfile"
 	"poise/optimize"
 	"poise/settle"
@@ -125,8 +126,8 @@ func otherLevel(flag, spec string, s *setup, withDispersion bool) (*settle.Level
 	if _, err := set.Shells(s.mol, s.conv); err != nil {
 		return nil, usageErr(fmt.Errorf("--%s: %w", flag, err))
 	}
-	if s.fit != nil && s.fit.Role == basis.RoleJFit && fn.ExactExchange() != 0 {
-		return nil, usageErr(fmt.Errorf("--%s %q with --fit %s: the JFIT sets fit only the Coulomb term; give def2-universal-jkfit (or jk) for HF and hybrid functionals", flag, spec, s.fit.Name))
+	if err := gradient.CheckFit(s.fit, fn, nil); err != nil {
+		return nil, usageErr(fmt.Errorf("--%s %q with --fit %s: %w", flag, spec, s.fit.Name, err))
 	}
 	l := settleLevel(s)
 	l.Basis, l.Method, l.Dispersion = set, fn, nil

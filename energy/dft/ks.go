@@ -3,13 +3,13 @@ package dft
 import (
 	"context"
 	"math"
-	"poise/energy/internal/kernel"
 	"runtime"
 	"sync"
 
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/internal/hugepage"
+	"poise/energy/internal/kernel"
 	"poise/energy/xc"
 )
 

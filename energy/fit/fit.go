@@ -60,6 +60,9 @@ func New(ctx context.Context, orb, aux *integral.Basis, threads int) (*Fit, erro
 	if f.naux == 0 {
 		return nil, errors.New("fit: the auxiliary basis is empty")
 	}
+	if l := max(orb.MaxL, aux.MaxL); l > integral.MaxShellL {
+		return nil, fmt.Errorf("fit: a shell of angular momentum %d, above the %d the integrals support", l, integral.MaxShellL)
+	}
 	f.tc = integral.NewThreeCentre(orb, aux)
 	v := f.tc.TwoCentre(threads)
 	l, err := cholesky(v, f.naux)
@@ -76,9 +79,6 @@ func New(ctx context.Context, orb, aux *integral.Basis, threads int) (*Fit, erro
 	return f, nil
 }
 
-// Words is the number of float64 values the fit keeps (B and L).
-func (f *Fit) Words() int64 { return int64(len(f.b) + len(f.chol)) }
-
 // PeakBytes is the most memory a fit of nbf orbital and naux auxiliary
 // functions holds at once, in its gradient: B and the gradient's G
 // (naux·nbf(nbf+1)/2 values each), the metric's factor and its inverse.
@@ -87,9 +87,6 @@ func PeakBytes(nbf, naux int) int64 {
 	return 8 * (2*int64(naux)*npair + 2*int64(naux)*int64(naux))
 }
 
-// NumAux is the number of auxiliary functions.
-func (f *Fit) NumAux() int { return f.naux }
-
 // pairIndex is the packed index of the orbital pair μ ≥ ν.
 func pairIndex(mu, nu int) int { return mu*(mu+1)/2 + nu }
 
@@ -97,7 +94,6 @@ func pairIndex(mu, nu int) int { return mu*(mu+1)/2 + nu }
 func (f *Fit) threeCentre(ctx context.Context) ([]float64, error) {
 	orb, aux := f.orb, f.aux
 	ns, na := len(orb.Shells), len(aux.Shells)
-	eri := integral.NewERI(orb)
 	qaux := make([]float64, na)
 	qmax := 0.0
 	for p := range qaux {
@@ -120,7 +116,7 @@ func (f *Fit) threeCentre(ctx context.Context) ([]float64, error) {
 		local := grow(&wk.local, np*f.naux)
 		clear(local)
 		for b := 0; b <= a; b++ {
-			qab := eri.Schwarz(a, b)
+			qab := f.tc.OrbitalSchwarz(a, b)
 			if qab*qmax < screenThreshold {
 				continue
 			}
@@ -440,16 +436,40 @@ func (f *Fit) Exchange(ctx context.Context, d []float64) ([]float64, error) {
 					}
 				}
 			}
-			kernel.DotProducts(y, n, yw, n, ld, wk.kc, n)
+			lowerProducts(y, yw, n, ld, wk.kc)
 		}, nil)
 		if err != nil {
 			return nil, err
 		}
 		for c := 0; c < end-start; c++ {
-			for i, v := range slots[c].kc {
-				k[i] += v
+			kc := slots[c].kc
+			for i := 0; i < n; i++ {
+				row, src := k[i*n:i*n+i+1], kc[i*n:i*n+i+1]
+				for j, v := range src {
+					row[j] += v
+				}
 			}
 		}
 	}
+	for i := 0; i < n; i++ {
+		for j := 0; j < i; j++ {
+			k[j*n+i] = k[i*n+j]
+		}
+	}
 	return k, nil
+}
+
+// triBlock is the row block of lowerProducts.
+const triBlock = 64
+
+// lowerProducts sets c[i·n+j] = Σ_t a[i·k+t] b[j·k+t] for j ≤ i (A·Bᵀ of
+// two n×k row-major matrices, a symmetric product of which the lower
+// triangle suffices), in row blocks of triBlock: about half the work of
+// the full product. Elements above the diagonal inside a block are written
+// too; others are left alone.
+func lowerProducts(a, b []float64, n, k int, c []float64) {
+	for i0 := 0; i0 < n; i0 += triBlock {
+		i1 := min(i0+triBlock, n)
+		kernel.DotProducts(a[i0*k:], i1-i0, b, i1, k, c[i0*n:], n)
+	}
 }

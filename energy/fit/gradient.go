@@ -170,9 +170,9 @@ func (f *Fit) exchangeGradientTerms(ctx context.Context, ds []float64, fs float6
 	}
 	return parallelChunks(ctx, f.threads, nchunk, func(ch int, wk *work) {
 		for p := ch * auxPerChunk; p < min((ch+1)*auxPerChunk, naux); p++ {
-			w := zw[p*r2 : (p+1)*r2]                        // Λ Zo_P Λ, symmetric
-			kernel.DotProducts(v, n, w, r, r, wk.t, r)      // T = V W
-			kernel.DotProducts(wk.t, n, v, n, r, wk.gam, n) // Γ = T Vᵀ
+			w := zw[p*r2 : (p+1)*r2]                   // Λ Zo_P Λ, symmetric
+			kernel.DotProducts(v, n, w, r, r, wk.t, r) // T = V W
+			lowerProducts(wk.t, v, n, r, wk.gam)       // Γ = T Vᵀ, lower triangle
 			row := g[p*npair : (p+1)*npair]
 			for mu := 0; mu < n; mu++ {
 				base := mu * (mu + 1) / 2

@@ -856,62 +856,18 @@ func (e *ERIEngine) GradientJK(dens [][]float64, exchangeFactor float64, natoms 
 	}
 	nq := np * (np + 1) / 2
 	nc := (nq + derivQuartetsPerChunk - 1) / derivQuartetsPerChunk
-	total := make([]float64, 3*natoms)
-
-	var next atomic.Int64
-	var mu sync.Mutex
-	results := make([][]float64, nc)
-	reduced := 0
-	var wg sync.WaitGroup
-	for t := 0; t < min(threads, max(nc, 1)); t++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			dw := d.newWork()
-			for {
-				c := int(next.Add(1)) - 1
-				if c >= nc {
-					return
-				}
-				g := make([]float64, 3*natoms)
-				start := c * derivQuartetsPerChunk
-				end := min(start+derivQuartetsPerChunk, nq)
-				// Decode the first quartet index: t = ij(ij+1)/2 + kl.
-				ij := int((math.Sqrt(float64(8*start+1)) - 1) / 2)
-				for ij*(ij+1)/2 > start {
-					ij--
-				}
-				for (ij+1)*(ij+2)/2 <= start {
-					ij++
-				}
-				kl := start - ij*(ij+1)/2
-				for q := start; q < end; q++ {
-					d.quartetGradient(dw, dd, int(pi[ij]), int(pj[ij]), int(pi[kl]), int(pj[kl]), atom, g)
-					kl++
-					if kl > ij {
-						ij++
-						kl = 0
-					}
-				}
-				mu.Lock()
-				results[c] = g
-				for reduced < nc && results[reduced] != nil {
-					for x, v := range results[reduced] {
-						total[x] += v
-					}
-					results[reduced] = nil
-					reduced++
-				}
-				mu.Unlock()
+	return reduceChunks(nc, natoms, threads, d.newWork, func(dw *derivWork, c int, g []float64) {
+		start := c * derivQuartetsPerChunk
+		ij, kl := triDecode(start)
+		for q := start; q < min(start+derivQuartetsPerChunk, nq); q++ {
+			d.quartetGradient(dw, dd, int(pi[ij]), int(pj[ij]), int(pi[kl]), int(pj[kl]), atom, g)
+			kl++
+			if kl > ij {
+				ij++
+				kl = 0
 			}
-		}()
-	}
-	wg.Wait()
-	grad := make([][3]float64, natoms)
-	for a := range grad {
-		grad[a] = [3]float64{total[3*a], total[3*a+1], total[3*a+2]}
-	}
-	return grad
+		}
+	})
 }
 
 // quartetGradient adds the contribution of the unique quartet (ij|kl)
@@ -972,4 +928,61 @@ func (d *eriDeriv) quartetGradient(dw *derivWork, dd *derivDensity, i, j, k, l i
 		g[3*atom[sh[2]]+x] += gC[x]
 		g[3*atom[sh[3]]+x] -= gA[x] + gB[x] + gC[x]
 	}
+}
+
+// reduceChunks runs nc chunks of work on threads goroutines, each chunk
+// writing a fresh 3·natoms buffer, and sums the buffers in chunk order.
+func reduceChunks[W any](nc, natoms, threads int, newWork func() W, run func(work W, c int, g []float64)) [][3]float64 {
+	if threads < 1 {
+		threads = runtime.GOMAXPROCS(0)
+	}
+	total := make([]float64, 3*natoms)
+	var next atomic.Int64
+	var mu sync.Mutex
+	results := make([][]float64, nc)
+	reduced := 0
+	var wg sync.WaitGroup
+	for th := 0; th < min(threads, max(nc, 1)); th++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			work := newWork()
+			for {
+				c := int(next.Add(1)) - 1
+				if c >= nc {
+					return
+				}
+				g := make([]float64, 3*natoms)
+				run(work, c, g)
+				mu.Lock()
+				results[c] = g
+				for reduced < nc && results[reduced] != nil {
+					for x, v := range results[reduced] {
+						total[x] += v
+					}
+					results[reduced] = nil
+					reduced++
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	wg.Wait()
+	grad := make([][3]float64, natoms)
+	for a := range grad {
+		grad[a] = [3]float64{total[3*a], total[3*a+1], total[3*a+2]}
+	}
+	return grad
+}
+
+// triDecode returns (i, j), i ≥ j, of the triangular index i(i+1)/2+j.
+func triDecode(idx int) (int, int) {
+	i := int((math.Sqrt(float64(8*idx+1)) - 1) / 2)
+	for i*(i+1)/2 > idx {
+		i--
+	}
+	for (i+1)*(i+2)/2 <= idx {
+		i++
+	}
+	return i, idx - i*(i+1)/2
 }

@@ -55,8 +55,13 @@ type ThreeCentre struct {
 	orbPairs   []eriPair // triangular over orbital shells, index i(i+1)/2+j
 	auxPairs   []eriPair // auxiliary shell p with its unit shell
 	auxSchwarz []float64
-	atom       []int // atom of every shell of comb
+	orbSchwarz []float64 // triangular over orbital shells, as orbPairs
+	atom       []int     // atom of every shell of comb
 }
+
+// MaxShellL is the highest angular momentum of a shell that the
+// electron-repulsion code (four-, three- and two-centre) handles.
+const MaxShellL = eriMaxL
 
 // ThreeCentreWorkspace is the scratch memory of one goroutine.
 type ThreeCentreWorkspace struct {
@@ -112,19 +117,30 @@ func NewThreeCentre(orb, aux *Basis) *ThreeCentre {
 	for p := 0; p < t.naux; p++ {
 		t.auxPairs[p] = t.preparePair(t.norb+p, t.norb+t.naux+p)
 	}
-	// Schwarz factors of the auxiliary shells: sqrt(max |(P|P)|).
+	// Schwarz factors: sqrt(max |(P|P)|) of the auxiliary shells and
+	// sqrt(max |(ab|ab)|) of the orbital shell pairs.
 	t.auxSchwarz = make([]float64, t.naux)
 	w := t.NewWorkspace()
 	for p := 0; p < t.naux; p++ {
-		v := t.pairBlock(w, p, p)
-		n := aux.shells[p].nfunc
-		var mx float64
-		for f := 0; f < n; f++ {
-			mx = math.Max(mx, math.Abs(v[f*n+f]))
+		t.auxSchwarz[p] = diagonalRoot(t.pairBlock(w, p, p), aux.shells[p].nfunc)
+	}
+	t.orbSchwarz = make([]float64, len(t.orbPairs))
+	for i := 0; i < t.norb; i++ {
+		for j := 0; j <= i; j++ {
+			pr := t.orbPair(i, j)
+			t.orbSchwarz[i*(i+1)/2+j] = diagonalRoot(t.eng.quartetPairs(w.w, pr, pr, i, i), orb.shells[i].nfunc*orb.shells[j].nfunc)
 		}
-		t.auxSchwarz[p] = math.Sqrt(mx)
 	}
 	return t
+}
+
+// diagonalRoot returns sqrt(max_x |v[x·n+x]|) of an n×n block.
+func diagonalRoot(v []float64, n int) float64 {
+	var mx float64
+	for x := 0; x < n; x++ {
+		mx = math.Max(mx, math.Abs(v[x*n+x]))
+	}
+	return math.Sqrt(mx)
 }
 
 // unitShell is the constant function 1 at centre c as a shell: exponent 0,
@@ -172,8 +188,17 @@ func (t *ThreeCentre) pairBlock(w *ThreeCentreWorkspace, p, q int) []float64 {
 }
 
 // AuxSchwarz returns sqrt(max |(P|P)|) over the functions P of auxiliary
-// shell p: |(ab|P)| ≤ ERIEngine.Schwarz(a, b)·AuxSchwarz(p).
+// shell p: |(ab|P)| ≤ OrbitalSchwarz(a, b)·AuxSchwarz(p).
 func (t *ThreeCentre) AuxSchwarz(p int) float64 { return t.auxSchwarz[p] }
+
+// OrbitalSchwarz returns sqrt(max |(ab|ab)|) over the function pairs of
+// orbital shells a and b (the factor ERIEngine.Schwarz gives).
+func (t *ThreeCentre) OrbitalSchwarz(a, b int) float64 {
+	if a < b {
+		a, b = b, a
+	}
+	return t.orbSchwarz[a*(a+1)/2+b]
+}
 
 // NumOrbitalShells is the number of orbital shells.
 func (t *ThreeCentre) NumOrbitalShells() int { return t.norb }
@@ -240,29 +265,16 @@ func (t *ThreeCentre) forAuxPairs(threads int, f func(w *ThreeCentreWorkspace, c
 	wg.Wait()
 }
 
-// triDecode returns (i, j), i ≥ j, of the triangular index i(i+1)/2+j.
-func triDecode(idx int) (int, int) {
-	i := int((math.Sqrt(float64(8*idx+1)) - 1) / 2)
-	for i*(i+1)/2 > idx {
-		i--
-	}
-	for (i+1)*(i+2)/2 <= idx {
-		i++
-	}
-	return i, idx - i*(i+1)/2
-}
-
 // threeDerivWork is the scratch memory of one gradient goroutine.
 type threeDerivWork struct {
 	dw         *derivWork
-	ew         *ThreeCentreWorkspace
 	gf, t1, t2 []float64 // G block over final functions and transformation buffers
 }
 
 func (t *ThreeCentre) newDerivWork(d *eriDeriv) *threeDerivWork {
 	nc := basisNCart(max(t.orb.MaxL, t.aux.MaxL))
 	n := nc * nc * nc
-	return &threeDerivWork{dw: d.newWork(), ew: t.NewWorkspace(),
+	return &threeDerivWork{dw: d.newWork(),
 		gf: make([]float64, n), t1: make([]float64, n), t2: make([]float64, n)}
 }
 
@@ -354,51 +366,6 @@ func (t *ThreeCentre) addDeriv(g []float64, sh [4]int, gA, gB, gC [3]float64) {
 	}
 }
 
-// reduceChunks runs nc chunks of work on threads goroutines, each chunk
-// writing a fresh 3·natoms buffer, and sums the buffers in chunk order.
-func reduceChunks(nc, natoms, threads int, newWork func() any, run func(work any, c int, g []float64)) [][3]float64 {
-	if threads < 1 {
-		threads = runtime.GOMAXPROCS(0)
-	}
-	total := make([]float64, 3*natoms)
-	var next atomic.Int64
-	var mu sync.Mutex
-	results := make([][]float64, nc)
-	reduced := 0
-	var wg sync.WaitGroup
-	for th := 0; th < min(threads, max(nc, 1)); th++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			work := newWork()
-			for {
-				c := int(next.Add(1)) - 1
-				if c >= nc {
-					return
-				}
-				g := make([]float64, 3*natoms)
-				run(work, c, g)
-				mu.Lock()
-				results[c] = g
-				for reduced < nc && results[reduced] != nil {
-					for x, v := range results[reduced] {
-						total[x] += v
-					}
-					results[reduced] = nil
-					reduced++
-				}
-				mu.Unlock()
-			}
-		}()
-	}
-	wg.Wait()
-	grad := make([][3]float64, natoms)
-	for a := range grad {
-		grad[a] = [3]float64{total[3*a], total[3*a+1], total[3*a+2]}
-	}
-	return grad
-}
-
 // Gradient returns g[A][k] = Σ_P Σ_{μ,ν} G_{P,μν} ∂(μν|P)/∂R_{A,k} for
 // every atom A (the shells' Atom fields; max(natoms, 1 + highest atom
 // index) rows). G is symmetric in μν and packed: G[P·npair + μ(μ+1)/2 + ν]
@@ -425,9 +392,8 @@ func (t *ThreeCentre) Gradient(G []float64, natoms, threads int) [][3]float64 {
 	np := t.norb * (t.norb + 1) / 2
 	nc := (np + threeGradPairsPerChunk - 1) / threeGradPairsPerChunk
 	return reduceChunks(nc, natoms, threads,
-		func() any { return t.newDerivWork(d) },
-		func(work any, c int, g []float64) {
-			tw := work.(*threeDerivWork)
+		func() *threeDerivWork { return t.newDerivWork(d) },
+		func(tw *threeDerivWork, c int, g []float64) {
 			start := c * threeGradPairsPerChunk
 			a, b := triDecode(start)
 			for x := start; x < min(start+threeGradPairsPerChunk, np); x++ {
@@ -446,14 +412,7 @@ func (t *ThreeCentre) Gradient(G []float64, natoms, threads int) [][3]float64 {
 func (t *ThreeCentre) pairGradient(d *eriDeriv, tw *threeDerivWork, G []float64, npair, a, b int, dp *derivPair, dAux []derivPair, g []float64) {
 	orb := t.orb
 	sa, sb := &orb.shells[a], &orb.shells[b]
-	// Schwarz factor of the pair.
-	v := t.eng.quartetPairs(tw.ew.w, t.orbPair(a, b), t.orbPair(a, b), a, a)
-	nab := sa.nfunc * sb.nfunc
-	var qmx float64
-	for x := 0; x < nab; x++ {
-		qmx = math.Max(qmx, math.Abs(v[x*nab+x]))
-	}
-	qab := math.Sqrt(qmx)
+	qab := t.OrbitalSchwarz(a, b)
 	fac := 2.0
 	if a == b {
 		fac = 1
@@ -549,9 +508,8 @@ func (t *ThreeCentre) TwoCentreGradient(H []float64, natoms, threads int) [][3]f
 	nc := (np + twoGradPairsPerChunk - 1) / twoGradPairsPerChunk
 	aux := t.aux
 	return reduceChunks(nc, natoms, threads,
-		func() any { return t.newDerivWork(d) },
-		func(work any, c int, g []float64) {
-			tw := work.(*threeDerivWork)
+		func() *threeDerivWork { return t.newDerivWork(d) },
+		func(tw *threeDerivWork, c int, g []float64) {
 			start := c * twoGradPairsPerChunk
 			p, q := triDecode(start)
 			for x := start; x < min(start+twoGradPairsPerChunk, np); x++ {

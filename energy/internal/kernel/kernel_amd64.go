@@ -114,7 +114,3 @@ func ZRows(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64) 
 	_, _, _, _ = half[np-1], bx[np-1], by[np-1], bz[np-1]
 	zRowsAVX2(&phi[0], &gx[0], &gy[0], &gz[0], &half[0], &bx[0], &by[0], &bz[0], m, np, &z[0])
 }
-
-// SIMD reports whether the kernels run their AVX2+FMA versions on this
-// processor.
-func SIMD() bool { return simd }

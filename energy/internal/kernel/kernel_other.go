@@ -37,7 +37,3 @@ func ExpNonPositive(x, out []float64) {
 func ZRows(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64) {
 	zRowsGo(phi, gx, gy, gz, half, bx, by, bz, m, np, z)
 }
-
-// SIMD reports whether the kernels run vector versions; in this build they
-// never do.
-func SIMD() bool { return simd }

@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 )
 
 // naiveDots is the textbook triple loop for c = A·Bᵀ, with the error bound
@@ -378,6 +380,56 @@ func BenchmarkMatMul(b *testing.B) {
 				}
 				b.ReportMetric(flops*float64(b.N)/b.Elapsed().Seconds()/1e9, "Gflop/s")
 			})
+		}
+	}
+}
+
+// TestDotProductsGonum compares the product kernel with gonum's matrix product
+// for shapes that exercise the 4×2 tiles and their remainders.
+func TestDotProductsGonum(t *testing.T) {
+	for _, sz := range [][3]int{{1, 1, 1}, {4, 2, 3}, {5, 3, 7}, {7, 9, 1}, {13, 6, 30}, {8, 8, 0}} {
+		na, nb, k := sz[0], sz[1], sz[2]
+		a := make([]float64, na*k)
+		b := make([]float64, nb*k)
+		x := uint64(12345)
+		rnd := func() float64 {
+			x = x*6364136223846793005 + 1442695040888963407
+			return float64(x>>11)/float64(1<<53) - 0.5
+		}
+		for i := range a {
+			a[i] = rnd()
+		}
+		for i := range b {
+			b[i] = rnd()
+		}
+		const ldc = 11
+		c := make([]float64, na*ldc)
+		for i := range c {
+			c[i] = 99
+		}
+		DotProducts(a, na, b, nb, k, c, ldc)
+		var want mat.Dense
+		if k > 0 {
+			want.Mul(mat.NewDense(na, k, a), mat.NewDense(nb, k, b).T())
+		}
+		for i := 0; i < na; i++ {
+			for j := 0; j < ldc; j++ {
+				got := c[i*ldc+j]
+				switch {
+				case j >= nb:
+					if got != 99 {
+						t.Errorf("%v: c[%d][%d] = %g written outside the block", sz, i, j, got)
+					}
+				case k == 0:
+					if got != 0 {
+						t.Errorf("%v: c[%d][%d] = %g, want 0", sz, i, j, got)
+					}
+				default:
+					if w := want.At(i, j); math.Abs(got-w) > 1e-14*(1+math.Abs(w)) {
+						t.Errorf("%v: c[%d][%d] = %.17g, gonum %.17g", sz, i, j, got, w)
+					}
+				}
+			}
 		}
 	}
 }
