@@ -106,6 +106,16 @@ type HessianOptions struct {
 	// invariance (a DFT grid moves with the atoms); the derived columns
 	// carry the others' noise, summed.
 	TranslationalInvariance bool
+	// Extrapolate starts every displaced point of a coordinate after its
+	// first (the −h point after the +h one) from the state of the nearest
+	// earlier one extrapolated to its own step (gradient.Extrapolation):
+	// an SCF then begins with an error of order h² instead of h and takes
+	// about 40 % fewer iterations there (aspirin B3LYP/6-31G*: 7 instead
+	// of 12). The points of a coordinate then run one after the other, and
+	// their starts differ, so points that are mirror images of each other
+	// in a symmetric molecule (when SymmetryKinds does not derive one from
+	// the other) agree only to the SCF convergence, no longer bit for bit.
+	Extrapolate bool
 	// Reference, if set, is the surface's evaluation at x0 (gradient, and
 	// the dipole with Dipole), made with the same settings, and the
 	// surface's warm start is that evaluation's: the Hessian then takes it
@@ -149,7 +159,8 @@ type Hessian struct {
 	// were evaluated by this call and Reused were read from the work
 	// directory. Evaluations counts every surface evaluation of this call
 	// (the reference, and when resuming a re-evaluation of its energy to
-	// restore the warm start).
+	// restore the warm start, and of saved points whose states a point
+	// left to compute needs, with Extrapolate).
 	Displacements, Computed, Reused, Evaluations int
 	// SCFIterations are those of each displaced point evaluated, in the
 	// order of the displacements (coordinate-major, steps +1, −1[, +2,
@@ -165,10 +176,14 @@ type Hessian struct {
 
 // computePoint evaluates the point d of s (Coordinate −1: the reference) (gradient, and the dipole with
 // dipole) and saves it in st. A displaced point starts from the surface's
-// warm start and keeps it; the reference replaces it. x is scratch for the
-// displaced geometry (nil: allocated).
-func computePoint(ctx context.Context, s gradient.Surface, x0 []float64, step float64, d Displacement, dipole bool, threads int, x []float64, st *store) (storedPoint, error) {
-	req := gradient.Request{Gradient: true, Dipole: dipole, Threads: threads}
+// warm start (moved by start, if set) and keeps it; the reference replaces
+// it. With keepState the point's electronic state is returned and saved
+// beside it (before it, so that a saved point whose state a later point
+// of its group needs always has it). x is scratch for the displaced
+// geometry (nil: allocated).
+func computePoint(ctx context.Context, s gradient.Surface, x0 []float64, step float64, d Displacement, dipole bool, threads int, x []float64, st *store,
+	start *gradient.Extrapolation, keepState bool) (storedPoint, []byte, error) {
+	req := gradient.Request{Gradient: true, Dipole: dipole, Threads: threads, Start: start, State: keepState}
 	name := referenceName
 	what := "reference point"
 	if d.Coordinate >= 0 {
@@ -184,11 +199,112 @@ func computePoint(ctx context.Context, s gradient.Surface, x0 []float64, step fl
 	}
 	var pt gradient.Point
 	if err := s.Evaluate(ctx, x0, req, &pt); err != nil {
-		return storedPoint{}, fmt.Errorf("freq: %s: %w", what, err)
+		return storedPoint{}, nil, fmt.Errorf("freq: %s: %w", what, err)
 	}
 	p := storedPoint{Coordinate: d.Coordinate, Steps: d.Steps, StepBohr: step, EnergyHartree: pt.EnergyHartree,
 		Gradient: pt.Gradient, DipoleAU: pt.DipoleAU, SCFIterations: pt.SCFIterations, GapHartree: pt.GapHartree}
-	return p, st.save(name, &p)
+	if keepState && pt.State != nil {
+		if err := st.saveState(name, pt.State); err != nil {
+			return storedPoint{}, nil, err
+		}
+	}
+	return p, pt.State, st.save(name, &p)
+}
+
+// A coordinate's displaced points form a group, evaluated one after the
+// other in the order of the step list (+1, −1[, +2, −2]): with
+// HessianOptions.Extrapolate each point after the first starts from the
+// state of the nearest earlier one extrapolated to its own step
+// (gradient.Extrapolation), the −h point from the +h point's with weight
+// −1. The groups, not the points, are what run
+// concurrently, and every point's start depends only on the points of its
+// group, so the result depends neither on the order of the groups nor on
+// the thread count; a plan task is a group for the same reason.
+
+// groups splits jobs (coordinate-major, as newLayout lists them) into
+// runs of one coordinate each: index ranges [start, end).
+func groups(jobs []Displacement) [][2]int {
+	var out [][2]int
+	for j := 0; j < len(jobs); {
+		e := j + 1
+		for e < len(jobs) && jobs[e].Coordinate == jobs[j].Coordinate {
+			e++
+		}
+		out = append(out, [2]int{j, e})
+		j = e
+	}
+	return out
+}
+
+// groupPoint is the callback of computeGroup for every point it computes.
+type groupPoint func(i int, p storedPoint)
+
+// computeGroup evaluates the points of one coordinate's group g that are
+// not done (done[i] false; done may be nil), in order, with extrapolate
+// chaining their starting states, and saves each; it calls finished for
+// every point it computes. The states of saved points that a later point
+// needs are read from st; a saved point whose state is missing (a work
+// directory written before states were kept, or a later point removed
+// by hand) is evaluated again for it, from the same start as before, so
+// that the later point starts as in an uninterrupted run; again counts
+// those evaluations. State files are removed once the group is complete.
+func computeGroup(ctx context.Context, s gradient.Surface, x0 []float64, step float64, dipole bool, threads int, x []float64, st *store,
+	g []Displacement, done []bool, extrapolate bool, finished groupPoint) (again int, err error) {
+	states := make(map[int][]byte, len(g))
+	for i, d := range g {
+		last := true // no later point of the group left to compute
+		for k := i + 1; k < len(g) && extrapolate; k++ {
+			if done == nil || !done[k] {
+				last = false
+			}
+		}
+		saved := done != nil && done[i]
+		if saved && last {
+			continue
+		}
+		if saved {
+			if b := st.loadState(d.FileName()); b != nil {
+				states[d.Steps] = b
+				continue
+			}
+		}
+		var start *gradient.Extrapolation
+		best := 0
+		for sp, b := range states {
+			if best == 0 || abs(sp-d.Steps) < abs(best-d.Steps) || (abs(sp-d.Steps) == abs(best-d.Steps) && sp > best) {
+				best = sp
+				start = &gradient.Extrapolation{From: b, Weight: float64(d.Steps) / float64(sp)}
+			}
+		}
+		if saved { // evaluated again for its state only; the saved point stays
+			_, state, err := computePoint(ctx, s, x0, step, d, dipole, threads, x, &store{}, start, true)
+			if err != nil {
+				return again, err
+			}
+			again++
+			if state != nil {
+				states[d.Steps] = state
+				if err := st.saveState(d.FileName(), state); err != nil {
+					return again, err
+				}
+			}
+			continue
+		}
+		p, state, err := computePoint(ctx, s, x0, step, d, dipole, threads, x, st, start, !last)
+		if err != nil {
+			return again, err
+		}
+		if state != nil {
+			states[d.Steps] = state
+		}
+		finished(i, p)
+	}
+	if extrapolate {
+		for _, d := range g {
+			st.removeState(d.FileName())
+		}
+	}
+	return again, nil
 }
 
 func (o *HessianOptions) stepList() []int {
@@ -242,7 +358,7 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 			return nil, err
 		}
 	} else if !haveRef {
-		if ref, err = computePoint(ctx, s, x0, step, Displacement{Coordinate: -1}, opt.Dipole, threads, nil, st); err != nil {
+		if ref, _, err = computePoint(ctx, s, x0, step, Displacement{Coordinate: -1}, opt.Dipole, threads, nil, st, nil, false); err != nil {
 			return nil, err
 		}
 		evals++
@@ -275,8 +391,8 @@ func ComputeHessian(ctx context.Context, s gradient.Surface, x0 []float64, opt H
 		}
 		evals++
 	}
-	n2, err := runDisplacements(ctx, s, x0, step, opt, threads, jobs, todo, results, st, h.Reused)
-	evals += n2
+	n2, e2, err := runDisplacements(ctx, s, x0, step, opt, threads, jobs, todo, results, st, h.Reused)
+	evals += e2
 	h.Computed = n2
 	h.Evaluations = evals
 	if err != nil {
@@ -434,28 +550,45 @@ func rotateBlock(r *[3][3]float64, b *[3][3]float64) [3][3]float64 {
 	return out
 }
 
-// runDisplacements evaluates the displaced points listed in todo on k
-// goroutines and saves each as it finishes. It returns the number
-// evaluated.
+// runDisplacements evaluates the displaced points listed in todo, a group
+// of one coordinate at a time on each of k goroutines, and saves each as
+// it finishes. It returns the number of points computed and of the
+// surface's evaluations (more when saved points are evaluated again for
+// their states).
 func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, step float64, opt HessianOptions,
-	threads int, jobs []Displacement, todo []int, results []storedPoint, st *store, reused int) (int, error) {
+	threads int, jobs []Displacement, todo []int, results []storedPoint, st *store, reused int) (computed, evaluations int, err error) {
 	if len(todo) == 0 {
-		return 0, nil
+		return 0, 0, nil
+	}
+	pending := make([]bool, len(jobs))
+	for _, j := range todo {
+		pending[j] = true
+	}
+	var work [][2]int // the groups with a point to compute
+	for _, g := range groups(jobs) {
+		for j := g[0]; j < g[1]; j++ {
+			if pending[j] {
+				work = append(work, g)
+				break
+			}
+		}
 	}
 	k := opt.Concurrent
 	if k <= 0 {
 		k = threads
 	}
-	k = min(k, len(todo), threads)
+	k = min(k, len(work), threads)
 	cctx, cancel := context.WithCancel(ctx)
 	defer cancel()
 	var (
-		mu       sync.Mutex
-		next     int
-		done     = reused
-		computed int
-		firstErr error
-		wg       sync.WaitGroup
+		mu   sync.Mutex
+		next int
+		done = reused
+		// evaluated counts the evaluations besides the computed points
+		// (saved points evaluated again for their states).
+		evaluated int
+		firstErr  error
+		wg        sync.WaitGroup
 	)
 	fail := func(err error) {
 		mu.Lock()
@@ -479,34 +612,42 @@ func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, ste
 				t := next
 				next++
 				mu.Unlock()
-				if t >= len(todo) {
+				if t >= len(work) {
 					return
 				}
-				j := todo[t]
-				p, err := computePoint(cctx, s, x0, step, jobs[j], opt.Dipole, share, x, st)
+				g := work[t]
+				have := make([]bool, g[1]-g[0])
+				for i := range have {
+					have[i] = !pending[g[0]+i]
+				}
+				again, err := computeGroup(cctx, s, x0, step, opt.Dipole, share, x, st, jobs[g[0]:g[1]], have, opt.Extrapolate, func(i int, p storedPoint) {
+					mu.Lock()
+					results[g[0]+i] = p
+					done++
+					computed++
+					if opt.Progress != nil {
+						opt.Progress(Progress{Done: done, Total: len(jobs), Reused: reused, SCFIterations: p.SCFIterations})
+					}
+					mu.Unlock()
+				})
+				mu.Lock()
+				evaluated += again
+				mu.Unlock()
 				if err != nil {
 					if cctx.Err() == nil {
 						fail(err)
 					}
 					return
 				}
-				mu.Lock()
-				results[j] = p
-				done++
-				computed++
-				if opt.Progress != nil {
-					opt.Progress(Progress{Done: done, Total: len(jobs), Reused: reused, SCFIterations: p.SCFIterations})
-				}
-				mu.Unlock()
 			}
 		}()
 	}
 	wg.Wait()
 	if firstErr != nil {
-		return computed, firstErr
+		return computed, computed + evaluated, firstErr
 	}
 	if err := ctx.Err(); err != nil {
-		return computed, fmt.Errorf("freq: Hessian interrupted after %d of %d displaced points: %w", done, len(jobs), err)
+		return computed, computed + evaluated, fmt.Errorf("freq: Hessian interrupted after %d of %d displaced points: %w", done, len(jobs), err)
 	}
-	return computed, nil
+	return computed, computed + evaluated, nil
 }

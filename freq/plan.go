@@ -11,9 +11,10 @@ import (
 )
 
 // The Hessian can also be computed piecewise, for a batch system that runs
-// every displaced point as an independent job: ComputeReference evaluates
-// and saves the undisplaced point, ComputeDisplacement one displaced point
-// each (anywhere, in any order, from the reference's warm start), and
+// every coordinate's displaced points as an independent job:
+// ComputeReference evaluates and saves the undisplaced point,
+// ComputeDisplacements the displaced points of one coordinate each
+// (anywhere, in any order, from the reference's warm start), and
 // ComputeHessian with the same options then finds every point saved and
 // assembles the result without a single evaluation. The saved points are
 // those of an ordinary run, so the piecewise result equals it.
@@ -252,6 +253,10 @@ type Points struct {
 	// Displacements are the displaced points evaluated, in the order
 	// ComputeHessian uses.
 	Displacements []Displacement
+	// Groups are the Displacements cut into those of one coordinate each
+	// (the unit of work of ComputeDisplacements and of ComputeHessian's
+	// concurrent evaluations).
+	Groups [][]Displacement
 	// SymmetryOperations is the order of the point group used (1: none).
 	SymmetryOperations int
 	// SymmetryShiftBohr is the largest distance an atom moved to make
@@ -266,7 +271,11 @@ func PlanPoints(nat int, x0 []float64, opt HessianOptions) (*Points, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Points{CoordsBohr: l.x, Displacements: l.jobs, SymmetryOperations: len(l.sym.ops), SymmetryShiftBohr: l.sym.shiftBohr}, nil
+	p := &Points{CoordsBohr: l.x, Displacements: l.jobs, SymmetryOperations: len(l.sym.ops), SymmetryShiftBohr: l.sym.shiftBohr}
+	for _, g := range groups(l.jobs) {
+		p.Groups = append(p.Groups, l.jobs[g[0]:g[1]])
+	}
+	return p, nil
 }
 
 // pieceSetup is setup for a piecewise Hessian, which needs a work
@@ -292,36 +301,53 @@ func ComputeReference(ctx context.Context, s gradient.Surface, x0 []float64, opt
 	if _, ok := st.load(referenceName, 3*nat, l.step, -1, 0); ok {
 		return false, nil
 	}
-	_, err = computePoint(ctx, s, l.x, l.step, Displacement{Coordinate: -1}, opt.Dipole, max(opt.Threads, 1), nil, st)
+	_, _, err = computePoint(ctx, s, l.x, l.step, Displacement{Coordinate: -1}, opt.Dipole, max(opt.Threads, 1), nil, st, nil, false)
 	return err == nil, err
 }
 
-// ComputeDisplacement evaluates one displaced point of s (from the
-// surface's current warm start, which it keeps: the caller sets it to the
-// reference's) and saves it in opt.WorkDir. A point already saved is not
-// recomputed (computed is then false). Temporary files of an earlier,
-// killed attempt at the same point are removed first.
-func ComputeDisplacement(ctx context.Context, s gradient.Surface, x0 []float64, opt HessianOptions, d Displacement) (computed bool, err error) {
+// ComputeDisplacements evaluates the displaced points ds of one
+// coordinate of s (a group of Points.Groups, or a part of one: they are
+// computed in the order given, with opt.Extrapolate each after the first
+// from the state of the nearest earlier one as ComputeHessian does, so a
+// whole group gives the same points as there) and saves them in opt.WorkDir. The first starts
+// from the surface's current warm start, which it keeps: the caller sets
+// it to the reference's. Points already saved are not recomputed; computed
+// counts those that were. Temporary files of an earlier, killed attempt
+// are removed first.
+func ComputeDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, opt HessianOptions, ds []Displacement) (computed int, err error) {
 	nat := s.NumAtoms()
 	st, l, err := pieceSetup(nat, x0, &opt)
 	if err != nil {
-		return false, err
+		return 0, err
 	}
 	step := l.step
-	if d.Coordinate < 0 || d.Coordinate >= 3*nat || d.Steps == 0 || abs(d.Steps) > 2 || (abs(d.Steps) == 2 && !opt.FourPoint) {
-		return false, fmt.Errorf("freq: no displaced point %+v in this Hessian", d)
-	}
-	name := d.FileName()
-	if _, ok := st.load(name, 3*nat, step, d.Coordinate, d.Steps); ok {
-		return false, nil
-	}
-	if old, _ := filepath.Glob(filepath.Join(st.dir, ".tmp-"+name+"-*")); len(old) > 0 {
-		for _, f := range old {
-			os.Remove(f)
+	done := make([]bool, len(ds))
+	for i, d := range ds {
+		if d.Coordinate < 0 || d.Coordinate >= 3*nat || d.Steps == 0 || abs(d.Steps) > 2 || (abs(d.Steps) == 2 && !opt.FourPoint) {
+			return 0, fmt.Errorf("freq: no displaced point %+v in this Hessian", d)
+		}
+		if d.Coordinate != ds[0].Coordinate {
+			return 0, fmt.Errorf("freq: displaced points %+v and %+v of different coordinates in one group", ds[0], d)
+		}
+		for _, e := range ds[:i] {
+			if e == d {
+				return 0, fmt.Errorf("freq: displaced point %+v twice in one group", d)
+			}
+		}
+		name := d.FileName()
+		if _, ok := st.load(name, 3*nat, step, d.Coordinate, d.Steps); ok {
+			done[i] = true
+			continue
+		}
+		for _, base := range []string{name, stateName(name)} {
+			old, _ := filepath.Glob(filepath.Join(st.dir, ".tmp-"+base+"-*"))
+			for _, f := range old {
+				os.Remove(f)
+			}
 		}
 	}
-	_, err = computePoint(ctx, s, l.x, step, d, opt.Dipole, max(opt.Threads, 1), nil, st)
-	return err == nil, err
+	_, err = computeGroup(ctx, s, l.x, step, opt.Dipole, max(opt.Threads, 1), nil, st, ds, done, opt.Extrapolate, func(int, storedPoint) { computed++ })
+	return computed, err
 }
 
 // SavedPoints reports which points of the Hessian described by opt (at x0,

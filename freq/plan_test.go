@@ -43,15 +43,19 @@ func TestPiecewiseHessian(t *testing.T) {
 		if err := os.WriteFile(stale, []byte("{"), 0o644); err != nil {
 			t.Fatal(err)
 		}
-		for k := len(disp) - 1; k >= 0; k-- {
+		if len(pts.Groups) != len(x) {
+			t.Fatalf("%d groups for %d coordinates", len(pts.Groups), len(x))
+		}
+		for k := len(pts.Groups) - 1; k >= 0; k-- {
+			g := pts.Groups[k]
 			job, _ := waterModel() // a fresh process per task
-			if done, err := ComputeDisplacement(context.Background(), job, x, opt, disp[k]); err != nil || !done {
-				t.Fatalf("%v: computed %v, %v", disp[k], done, err)
+			if n, err := ComputeDisplacements(context.Background(), job, x, opt, g); err != nil || n != len(g) {
+				t.Fatalf("%v: computed %d, %v", g, n, err)
 			}
 		}
 		again, _ := waterModel()
-		if done, err := ComputeDisplacement(context.Background(), again, x, opt, disp[3]); err != nil || done || again.Evaluations() != 0 {
-			t.Fatalf("a finished task run again: computed %v, %d evaluations, %v", done, again.Evaluations(), err)
+		if n, err := ComputeDisplacements(context.Background(), again, x, opt, pts.Groups[1]); err != nil || n != 0 || again.Evaluations() != 0 {
+			t.Fatalf("a finished task run again: computed %d, %d evaluations, %v", n, again.Evaluations(), err)
 		}
 		if _, err := os.Stat(stale); !os.IsNotExist(err) {
 			t.Errorf("temporary file of a killed attempt not removed: %v", err)
@@ -81,9 +85,9 @@ func TestPiecewiseHessian(t *testing.T) {
 	// A point that is not part of the Hessian is refused.
 	p, x := waterModel()
 	opt := HessianOptions{WorkDir: t.TempDir()}
-	for _, d := range []Displacement{{-1, 1}, {len(x), 1}, {0, 0}, {0, 2}, {0, 3}} {
-		if _, err := ComputeDisplacement(context.Background(), p, x, opt, d); err == nil {
-			t.Errorf("%+v accepted", d)
+	for _, g := range [][]Displacement{{{-1, 1}}, {{len(x), 1}}, {{0, 0}}, {{0, 2}}, {{0, 3}}, {{0, 1}, {1, -1}}, {{0, 1}, {0, 1}}} {
+		if _, err := ComputeDisplacements(context.Background(), p, x, opt, g); err == nil {
+			t.Errorf("%+v accepted", g)
 		}
 	}
 }

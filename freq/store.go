@@ -20,6 +20,9 @@ import (
 //	reference.json       the undisplaced point
 //	disp-0007-p1.json    coordinate 7 (from 0) displaced by +1 step
 //	disp-0007-m2.json    coordinate 7 displaced by −2 steps (four-point formula)
+//	disp-0007-p1.state   the electronic state of a saved point that a point of
+//	                     the same coordinate still to compute starts from
+//	                     (removed when the coordinate is done)
 //
 // Every file is written to a temporary name in the same directory and
 // renamed into place, so a killed run leaves either a whole file or none.
@@ -30,6 +33,7 @@ const (
 	manifestName   = "manifest.json"
 	referenceName  = "reference.json"
 	displacePrefix = "disp-"
+	stateSuffix    = ".state"
 )
 
 // ErrStaleWorkDir means that a work directory holds the points of another
@@ -166,7 +170,7 @@ func (s *store) clear() (int, error) {
 	for _, e := range entries {
 		name := e.Name()
 		ours := name == manifestName || name == referenceName ||
-			(strings.HasPrefix(name, displacePrefix) && strings.HasSuffix(name, ".json")) ||
+			(strings.HasPrefix(name, displacePrefix) && (strings.HasSuffix(name, ".json") || strings.HasSuffix(name, stateSuffix))) ||
 			strings.HasPrefix(name, ".tmp-")
 		if !ours || e.IsDir() {
 			continue
@@ -174,7 +178,7 @@ func (s *store) clear() (int, error) {
 		if err := os.Remove(filepath.Join(s.dir, name)); err != nil {
 			return n, fmt.Errorf("freq: work directory: %w", err)
 		}
-		if name != manifestName && !strings.HasPrefix(name, ".tmp-") {
+		if name != manifestName && !strings.HasPrefix(name, ".tmp-") && !strings.HasSuffix(name, stateSuffix) {
 			n++
 		}
 	}
@@ -221,6 +225,40 @@ func (s *store) save(name string, p *storedPoint) error {
 		return fmt.Errorf("freq: saving %s: %w", name, err)
 	}
 	return nil
+}
+
+// stateName is the name of the state file of the point file name.
+func stateName(name string) string { return strings.TrimSuffix(name, ".json") + stateSuffix }
+
+// saveState writes the electronic state of the point saved as name.
+func (s *store) saveState(name string, state []byte) error {
+	if s.dir == "" {
+		return nil
+	}
+	if err := WriteFileAtomic(filepath.Join(s.dir, stateName(name)), state); err != nil {
+		return fmt.Errorf("freq: saving the state of %s: %w", name, err)
+	}
+	return nil
+}
+
+// loadState reads the state of the point saved as name (nil if there is
+// none).
+func (s *store) loadState(name string) []byte {
+	if s.dir == "" {
+		return nil
+	}
+	b, err := os.ReadFile(filepath.Join(s.dir, stateName(name)))
+	if err != nil {
+		return nil
+	}
+	return b
+}
+
+// removeState removes the state file of the point saved as name, if any.
+func (s *store) removeState(name string) {
+	if s.dir != "" {
+		os.Remove(filepath.Join(s.dir, stateName(name)))
+	}
 }
 
 // WriteFileAtomic writes data to path atomically (temporary file and

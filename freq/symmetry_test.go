@@ -347,8 +347,8 @@ func TestSymmetryPiecewise(t *testing.T) {
 	if _, err := ComputeReference(ctx, p, c.x, opt); err != nil {
 		t.Fatal(err)
 	}
-	for _, d := range pts.Displacements {
-		if _, err := ComputeDisplacement(ctx, p, c.x, opt, d); err != nil {
+	for _, g := range pts.Groups {
+		if _, err := ComputeDisplacements(ctx, p, c.x, opt, g); err != nil {
 			t.Fatal(err)
 		}
 	}

@@ -486,7 +486,7 @@ func (r *runner) relax(ctx context.Context, s gradient.Surface, x []float64, cri
 func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64, cycle int) (*freq.Hessian, *freq.Analysis, error) {
 	masses := massesOf(r.mol)
 	before := s.Evaluations()
-	hopts := freq.HessianOptions{StepBohr: r.opts.StepBohr, Dipole: true,
+	hopts := freq.HessianOptions{StepBohr: r.opts.StepBohr, Dipole: true, Extrapolate: true,
 		Threads: r.lvl.SCF.Threads, Charge: float64(r.mol.Charge), MassesU: masses,
 		WorkDir: r.work.hessianDir(cycle), Tag: "settle " + r.lvl.tag(), DiscardStale: true}
 	if l := r.last; l != nil && slices.Equal(l.x, x) {

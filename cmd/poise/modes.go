@@ -360,7 +360,7 @@ func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmet
 		masses[i] = a.Mass
 	}
 	hopts := freq.HessianOptions{
-		StepBohr: step, FourPoint: fourPoint, Dipole: true, Threads: lf.threads,
+		StepBohr: step, FourPoint: fourPoint, Dipole: true, Threads: lf.threads, Extrapolate: true,
 		WorkDir: work, Tag: levelTag(s, conv),
 		Charge: float64(s.mol.Charge), MassesU: masses,
 	}

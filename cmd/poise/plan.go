@@ -21,8 +21,9 @@ import (
 	"poise/settle"
 )
 
-// Plans of modes (one displaced point per task) and reactions (one
-// structure's settle per task); see task.go for the directory layout.
+// Plans of modes (one coordinate's displaced points per task) and
+// reactions (one structure's settle per task); see task.go for the
+// directory layout.
 
 const displacementsDir = "displacements"
 
@@ -37,8 +38,9 @@ func planSavedPoints(mc *modesCalc) (bool, []freq.Displacement, error) {
 }
 
 // planModes writes the plan of a Hessian: the reference point is computed
-// here (its density saved for every task), every displaced point becomes a
-// task.
+// here (its density saved for every task), the displaced points of every
+// coordinate become a task (the −h point starts from the +h point's
+// extrapolated state, as in a single-process run).
 func planModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags) error {
 	if err := f.batch.check(); err != nil {
 		return err
@@ -73,7 +75,8 @@ func planModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags) e
 		return usageErr(fmt.Errorf("%s: %w", path, err))
 	}
 	x0 := pts.CoordsBohr
-	for k, d := range pts.Displacements {
+	for k, g := range pts.Groups {
+		d := g[0]
 		geo := make([][3]float64, len(s.mol.Atoms))
 		for a := range geo {
 			for c := 0; c < 3; c++ {
@@ -84,8 +87,14 @@ func planModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags) e
 				geo[a][c] = v / units.AngstromBohr
 			}
 		}
-		p.Tasks = append(p.Tasks, planTask{Index: k, Coordinate: d.Coordinate, Steps: d.Steps, GeometryAngstrom: geo,
-			Label: fmt.Sprintf("atom %d %s%c %+g bohr", d.Coordinate/3+1, s.mol.Atoms[d.Coordinate/3].Symbol, "xyz"[d.Coordinate%3], float64(d.Steps)*f.step)})
+		steps := make([]int, len(g))
+		moves := make([]string, len(g))
+		for i, e := range g {
+			steps[i] = e.Steps
+			moves[i] = fmt.Sprintf("%+g", float64(e.Steps)*f.step)
+		}
+		p.Tasks = append(p.Tasks, planTask{Index: k, Coordinate: d.Coordinate, StepList: steps, GeometryAngstrom: geo,
+			Label: fmt.Sprintf("atom %d %s%c %s bohr", d.Coordinate/3+1, s.mol.Atoms[d.Coordinate/3].Symbol, "xyz"[d.Coordinate%3], strings.Join(moves, ", "))})
 	}
 	existing, err := checkPlanDir(p)
 	if err != nil {
@@ -140,7 +149,7 @@ func planModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags) e
 		return err
 	}
 	out := cmd.OutOrStdout()
-	fmt.Fprintf(out, "plan %s: the Hessian of %s (%s) as %d tasks, one displaced point each, %d thread(s) per task\n",
+	fmt.Fprintf(out, "plan %s: the Hessian of %s (%s) as %d tasks, the displaced points of one coordinate each, %d thread(s) per task\n",
 		p.dir, path, s.label(), len(p.Tasks), p.ThreadsPerTask)
 	fmt.Fprintf(out, "reference point computed and saved (its density is every task's starting guess)\n")
 	if existing {
@@ -160,7 +169,7 @@ func modesPointErr(path string, err error, lf *levelFlags) error {
 	return fmt.Errorf("%s: %w", path, err)
 }
 
-// runModesTask computes one displaced point of a modes plan.
+// runModesTask computes the displaced points of one task of a modes plan.
 func runModesTask(ctx context.Context, p *planFile, t planTask, threads int) (bool, error) {
 	mc, err := planModesCalc(p, threads)
 	if err != nil {
@@ -179,8 +188,8 @@ func runModesTask(ctx context.Context, p *planFile, t planTask, threads int) (bo
 	}
 	hopts := mc.hopts
 	hopts.Threads = threads
-	d := freq.Displacement{Coordinate: t.Coordinate, Steps: t.Steps}
-	return freq.ComputeDisplacement(ctx, mc.surf, mc.x0, hopts, d)
+	n, err := freq.ComputeDisplacements(ctx, mc.surf, mc.x0, hopts, t.points())
+	return n > 0, err
 }
 
 // noEvaluation is a surface for assembling: every point must be saved.

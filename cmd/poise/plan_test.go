@@ -90,7 +90,7 @@ func TestModesPlanLocal(t *testing.T) {
 	level := []string{"--method", "hf", "--basis", "3-21g"}
 	dir := filepath.Join(t.TempDir(), "plan")
 	out, errOut, code, _ := execCLI(t, false, append([]string{"modes", modesWaterXYZ, "--plan", dir, "--threads", "1",
-		"--max-array", "3", "--sbatch=--partition=short"}, level...)...)
+		"--max-array", "2", "--sbatch=--partition=short"}, level...)...)
 	if code != exitOK {
 		t.Fatalf("plan: exit %d\n%s\n%s", code, out, errOut)
 	}
@@ -98,26 +98,26 @@ func TestModesPlanLocal(t *testing.T) {
 		t.Errorf("plan output lacks the commands:\n%s", out)
 	}
 	// Water in the yz plane, C2v: 5 displaced points (one H: +x, ±y, ±z;
-	// the other H by symmetry, O by translational invariance), at most 3
-	// per array: two scripts.
+	// the other H by symmetry, O by translational invariance) in 3 tasks
+	// (x; y; z), at most 2 per array: two scripts.
 	scripts, _ := filepath.Glob(filepath.Join(dir, "submit-*.sbatch"))
 	if len(scripts) != 2 {
-		t.Fatalf("%d scripts for 5 tasks of at most 3: %v", len(scripts), scripts)
+		t.Fatalf("%d scripts for 3 tasks of at most 2: %v", len(scripts), scripts)
 	}
 	s2, _ := os.ReadFile(filepath.Join(dir, "submit-2.sbatch"))
-	for _, want := range []string{"#SBATCH --array=0-1\n", "#SBATCH --cpus-per-task=1\n", "#SBATCH --partition=short\n", "index=$((SLURM_ARRAY_TASK_ID + 3))", "task run "} {
+	for _, want := range []string{"#SBATCH --array=0\n", "#SBATCH --cpus-per-task=1\n", "#SBATCH --partition=short\n", "index=$((SLURM_ARRAY_TASK_ID + 2))", "task run "} {
 		if !strings.Contains(string(s2), want) {
 			t.Errorf("submit-2.sbatch lacks %q:\n%s", want, s2)
 		}
 	}
-	for _, f := range []string{"plan.json", "input.xyz", "reference-state.json", "tasks/0000.json", "tasks/0004.json", "displacements/reference.json"} {
+	for _, f := range []string{"plan.json", "input.xyz", "reference-state.json", "tasks/0000.json", "tasks/0002.json", "displacements/reference.json"} {
 		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
 			t.Errorf("plan directory: %v", err)
 		}
 	}
 	// Assembling before the tasks: every task is listed, exit status 5.
 	_, errOut, code, _ = execCLI(t, false, "modes", "--assemble", dir)
-	if code != exitPlanOpen || !strings.Contains(errOut, "5 of 5 tasks") {
+	if code != exitPlanOpen || !strings.Contains(errOut, "3 of 3 tasks") {
 		t.Errorf("early assemble: exit %d\n%s", code, errOut)
 	}
 	out, errOut, code, _ = execCLI(t, false, "task", "run-all", dir, "--jobs", "2", "--threads", "2", "--json")
@@ -125,7 +125,7 @@ func TestModesPlanLocal(t *testing.T) {
 		t.Fatalf("run-all: exit %d\n%s\n%s", code, out, errOut)
 	}
 	var sum runAllSummary
-	if err := json.Unmarshal([]byte(out), &sum); err != nil || len(sum.Computed) != 5 || len(sum.Skipped) != 0 {
+	if err := json.Unmarshal([]byte(out), &sum); err != nil || len(sum.Computed) != 3 || len(sum.Skipped) != 0 {
 		t.Fatalf("run-all: %+v, %v", sum, err)
 	}
 	got := modesJSON(t, "modes", "--assemble", dir, "--json")
@@ -165,7 +165,7 @@ func TestModesPlanKilledTask(t *testing.T) {
 		t.Skip("B3LYP/3-21G water: 19 gradients")
 	}
 	// B3LYP: each point takes long enough (the grid) to be killed midway;
-	// every displaced point a task (--no-symmetry), 18 of them.
+	// every coordinate a task (--no-symmetry), 9 of them with 2 points each.
 	level := []string{"--method", "b3lyp", "--basis", "3-21g", "--no-symmetry"}
 	dir := filepath.Join(t.TempDir(), "plan")
 	if _, e, code, _ := execCLI(t, false, append([]string{"modes", modesWaterXYZ, "--plan", dir, "--threads", "1"}, level...)...); code != exitOK {
@@ -173,7 +173,7 @@ func TestModesPlanKilledTask(t *testing.T) {
 	}
 	const victim = 7
 	// Every other task, one at a time as a batch system would.
-	for i := 0; i < 18; i++ {
+	for i := 0; i < 9; i++ {
 		if i == victim {
 			continue
 		}
@@ -201,7 +201,7 @@ func TestModesPlanKilledTask(t *testing.T) {
 	p.Wait()
 
 	_, errOut, code, _ := execCLI(t, false, "modes", "--assemble", dir)
-	if code != exitPlanOpen || !strings.Contains(errOut, "1 of 18 tasks") || !strings.Contains(errOut, "task 7 (") {
+	if code != exitPlanOpen || !strings.Contains(errOut, "1 of 9 tasks") || !strings.Contains(errOut, "task 7 (") {
 		t.Fatalf("assemble after the kill: exit %d\n%s", code, errOut)
 	}
 	script, err := os.ReadFile(filepath.Join(dir, "resubmit.sbatch"))
@@ -217,8 +217,8 @@ func TestModesPlanKilledTask(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &sum); err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(sum.Computed, []int{victim}) || len(sum.Skipped) != 17 {
-		t.Errorf("after the kill: computed %v (want [7]), %d skipped (want 17)", sum.Computed, len(sum.Skipped))
+	if !reflect.DeepEqual(sum.Computed, []int{victim}) || len(sum.Skipped) != 8 {
+		t.Errorf("after the kill: computed %v (want [7]), %d skipped (want 8)", sum.Computed, len(sum.Skipped))
 	}
 	leftovers, _ := filepath.Glob(filepath.Join(dir, "displacements", ".tmp-*"))
 	if len(leftovers) != 0 {

@@ -12,6 +12,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -21,6 +22,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"poise/energy/scf"
+	"poise/freq"
 	"poise/internal/atomicfile"
 	"poise/optimize"
 )
@@ -34,7 +36,8 @@ import (
 //	input/…                the reaction file and its structures (reaction plans)
 //	reference-state.json   the reference density every displaced point starts from (modes)
 //	tasks/0007.json        the input of task 7; tasks/0007.failed if its last attempt failed
-//	displacements/         the results of modes tasks (one file per displaced point)
+//	displacements/         the results of modes tasks (one file per displaced point; a
+//	                       task computes the displaced points of one coordinate)
 //	store/                 the results store of reaction tasks (unless --store was given)
 //	submit.sbatch          the job-array script (submit-1.sbatch, … when split)
 //	logs/                  the batch system's output of each task
@@ -102,15 +105,33 @@ func (l planLevel) flags(threads int) *levelFlags {
 type planTask struct {
 	Index int    `json:"index"`
 	Label string `json:"label"`
-	// Modes plans: the displaced coordinate (from 0) and the signed number
-	// of steps; the displaced geometry is written for the record only.
+	// Modes plans: the displaced coordinate (from 0) and the signed
+	// numbers of steps of its points, computed in this order, each after
+	// the first from the state of an earlier one (freq.ComputeDisplacements);
+	// plans written before the points of a coordinate were grouped have one
+	// point per task, in Steps. The geometry of the first displaced point is
+	// written for the record only.
 	Coordinate       int          `json:"coordinate,omitempty"`
 	Steps            int          `json:"steps,omitempty"`
+	StepList         []int        `json:"step_list,omitempty"`
 	GeometryAngstrom [][3]float64 `json:"geometry_angstrom,omitempty"`
 	// Reaction plans: the species and its structure file (as in the
 	// reaction file).
 	Species string `json:"species,omitempty"`
 	File    string `json:"file,omitempty"`
+}
+
+// points are the displaced points of a modes task, in the order they are
+// computed.
+func (t *planTask) points() []freq.Displacement {
+	if len(t.StepList) == 0 {
+		return []freq.Displacement{{Coordinate: t.Coordinate, Steps: t.Steps}}
+	}
+	ds := make([]freq.Displacement, len(t.StepList))
+	for i, s := range t.StepList {
+		ds[i] = freq.Displacement{Coordinate: t.Coordinate, Steps: s}
+	}
+	return ds
 }
 
 // planFile is plan.json.
@@ -238,7 +259,7 @@ func (p *planFile) readTask(i int) (planTask, error) {
 		return t, fmt.Errorf("task %d: %s: %w", i, p.path(tasksDir, taskFileName(i)), err)
 	}
 	want := p.Tasks[i]
-	if t.Index != want.Index || t.Label != want.Label || t.Coordinate != want.Coordinate || t.Steps != want.Steps ||
+	if t.Index != want.Index || t.Label != want.Label || t.Coordinate != want.Coordinate || t.Steps != want.Steps || !slices.Equal(t.StepList, want.StepList) ||
 		t.Species != want.Species || t.File != want.File {
 		return t, fmt.Errorf("task %d: %s does not match %s", i, p.path(tasksDir, taskFileName(i)), planName)
 	}
@@ -453,7 +474,9 @@ func statusOf(p *planFile) (*taskStatus, error) {
 		}
 		idx := map[[2]int]int{}
 		for _, t := range p.Tasks {
-			idx[[2]int{t.Coordinate, t.Steps}] = t.Index
+			for _, d := range t.points() {
+				idx[[2]int{d.Coordinate, d.Steps}] = t.Index
+			}
 		}
 		for _, d := range missing {
 			st.done[idx[[2]int{d.Coordinate, d.Steps}]] = false
@@ -524,7 +547,7 @@ func newTaskCmd() *cobra.Command {
 		Use:   "task",
 		Short: "run the tasks of a plan (poise modes/reaction --plan DIR)",
 		Long: `A plan is a directory of independent tasks written by 'poise modes FILE.xyz --plan DIR'
-(one displaced point of the Hessian per task) or 'poise reaction FILE --plan DIR' (one
+(the displaced points of one coordinate of the Hessian per task) or 'poise reaction FILE --plan DIR' (one
 structure's whole settle per task), with a Slurm job-array script. The script calls
 'poise task run DIR --index N' for every task; 'poise task run-all DIR' runs the plan on
 one machine instead; 'poise task status DIR' shows what is finished. Then
