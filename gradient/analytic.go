@@ -41,8 +41,11 @@ var ErrNotConverged = errors.New("the analytic gradient needs a converged SCF")
 // Analytic returns the analytic nuclear gradient of a converged SCF result
 // res for mol in shells (the shells the SCF used; shell centres on the
 // atoms). xc is the Kohn–Sham potential the SCF used (nil for
-// Hartree–Fock); its grid must be the one of this geometry. threads ≤ 0
-// means all cores; the result does not depend on threads.
+// Hartree–Fock); its grid must be the one of this geometry, and its stored
+// function values are freed first (dft.Potential.ReleaseCache: the
+// gradient does not use them, and a density fit needs the room; the
+// XCCacheBytes budget counts on it). threads ≤ 0 means all cores; the
+// result does not depend on threads.
 //
 // The formula is that of a variational SCF energy (J. A. Pople,
 // R. Krishnan, H. B. Schlegel, J. S. Binkley, Int. J. Quantum Chem. Symp.
@@ -62,6 +65,9 @@ func Analytic(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell,
 	}
 	if threads <= 0 {
 		threads = runtime.GOMAXPROCS(0)
+	}
+	if xc != nil {
+		xc.ReleaseCache()
 	}
 	nat := len(mol.Atoms)
 	b := integral.NewBasis(shells)

@@ -551,13 +551,15 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 // XCCacheBytes is the share of a memory budget that the stored
 // basis-function values of a DFT grid may take in an SCF of nbf functions:
 // dft.CacheBytesFor with four-centre integrals, dft.CacheBytesFitted with
-// the density fit of aux (non-nil), which keeps none of them.
+// the density fit of aux (non-nil), which keeps none of them; for a fit,
+// what it holds during the SCF (fit.HeldBytes), since Analytic frees the
+// values before the fit's gradient needs more.
 func XCCacheBytes(memoryBytes int64, nbf int, aux []basis.Shell) int64 {
 	if aux == nil {
 		return dft.CacheBytesFor(memoryBytes, nbf)
 	}
 	_, naux := basis.Offsets(aux)
-	return dft.CacheBytesFitted(memoryBytes, fit.PeakBytes(nbf, naux))
+	return dft.CacheBytesFitted(memoryBytes, fit.HeldBytes(nbf, naux))
 }
 
 // orbitalGap is the smallest HOMO–LUMO gap over the spins of res (0 when

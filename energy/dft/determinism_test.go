@@ -65,7 +65,18 @@ func TestBuildIndependentOfThreadsAndCache(t *testing.T) {
 				p := New(fn, g, b, threads)
 				p.CacheBytes = cacheBytes
 				var outs []outcome
-				for rep := 0; rep < 2; rep++ {
+				// Builds 1–3 measure, store and reuse the function
+				// values; the fourth follows ReleaseCache.
+				for rep := 0; rep < 4; rep++ {
+					if rep == 3 {
+						if held := p.CachedBytes(); cacheBytes > 0 && (held == 0 || held > cacheBytes) {
+							t.Errorf("cache %d: %d bytes stored", cacheBytes, held)
+						}
+						p.ReleaseCache()
+						if held := p.CachedBytes(); held != 0 {
+							t.Errorf("cache %d: %d bytes still stored after ReleaseCache", cacheBytes, held)
+						}
+					}
 					v := make([][]float64, len(dens))
 					for s := range v {
 						v[s] = make([]float64, b.NBF*b.NBF)

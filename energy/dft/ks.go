@@ -45,16 +45,18 @@ type Potential struct {
 	// Batches are taken in order while they fit; the others are evaluated
 	// anew on every call. Zero means DefaultCacheBytes; a negative value
 	// keeps nothing. Set it before the first Build; it does not change
-	// results. The memory is freed with the Potential.
+	// results. The memory is freed with the Potential, or by ReleaseCache.
 	CacheBytes int64
 	cache      []batchValues // per batch; vals nil until stored
 	cached     []bool        // per batch: store its values
+	// kept is, during the first Build, the number of functions each batch
+	// keeps (the exact size of its stored values); nil afterwards.
+	kept []int32
 	// slab holds the stored values of all cached batches, batch bi from
-	// slabOff[bi] with room for all functions of its shells: the values
-	// are evaluated there in place, and it is one allocation that can be
-	// backed by huge pages (package hugepage).
-	slab    []float64
-	slabOff []int
+	// slabOff[bi] (slabLen[bi] values): one allocation that can be backed
+	// by huge pages (package hugepage).
+	slab             []float64
+	slabOff, slabLen []int
 	// Scratch kept from one Build to the next: the potential blocks of one
 	// group of batches and the per-thread workspaces.
 	results []batchResult
@@ -135,8 +137,9 @@ type batchResult struct {
 // total density, or α and β) and adds the potential into v. It returns the
 // energy and the integrated electron count.
 //
-// The first Build of a Potential also stores the basis-function values of
-// as many batches as CacheBytes allows (see there); later Builds reuse them.
+// The first Build of a Potential measures the basis-function values each
+// batch keeps, the second stores those of as many batches as CacheBytes
+// allows (see there), and later Builds reuse them.
 // Build is not safe for concurrent use on one Potential.
 func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) (float64, float64, error) {
 	p.prepareCache()
@@ -225,7 +228,8 @@ func CacheBytesFor(memoryBytes int64, nbf int) int64 {
 
 // CacheBytesFitted is CacheBytesFor for a density-fitted calculation,
 // which keeps no four-centre integrals: three quarters of the budget less
-// fitBytes, the most the fit holds at once (fit.PeakBytes), but at least
+// fitBytes, what the fit holds while the values are stored
+// (fit.HeldBytes; they are freed before its gradient), but at least
 // the quarter of CacheBytesFor. A budget of 0 gives 0.
 func CacheBytesFitted(memoryBytes, fitBytes int64) int64 {
 	if memoryBytes <= 0 {
@@ -260,16 +264,23 @@ type batchValues struct {
 	vals []float64 // nv blocks of len(fns)×np: φ, ∂xφ, ∂yφ, ∂zφ
 }
 
-// prepareCache decides, once per Potential, which batches keep their
-// function values: the first ones, in batch order, whose upper-bound size
-// (all functions of the shells that reach the batch) still fits in the
-// budget. The choice depends on the grid and basis only.
+// prepareCache, called by every Build, decides which batches keep their
+// function values. The first Build only measures how many functions each
+// batch keeps (kept); the second takes the batches in order while their
+// exact size still fits in the budget, sets one slab aside for them and
+// stores their values as it evaluates them. The choice depends on the grid
+// and basis only.
 func (p *Potential) prepareCache() {
-	if p.cache != nil {
+	nb := len(p.grid.Batches)
+	if p.cache == nil {
+		p.cache = make([]batchValues, nb)
+		p.cached = make([]bool, nb)
+		p.kept = make([]int32, nb)
 		return
 	}
-	p.cache = make([]batchValues, len(p.grid.Batches))
-	p.cached = make([]bool, len(p.grid.Batches))
+	if p.kept == nil {
+		return
+	}
 	budget := p.CacheBytes
 	if budget == 0 {
 		budget = DefaultCacheBytes
@@ -279,25 +290,35 @@ func (p *Potential) prepareCache() {
 		nv = 4
 	}
 	var used int64
-	p.slabOff = make([]int, len(p.grid.Batches))
+	p.slabOff, p.slabLen = make([]int, nb), make([]int, nb)
 	total := 0
 	for bi, bt := range p.grid.Batches {
-		m := 0
-		for _, si := range p.batchShells[bi] {
-			m += p.b.Shells[si].NumFunctions()
-		}
-		size := 8*nv*int64(m)*int64(bt.End-bt.Start) + 4*int64(m)
+		m := int64(p.kept[bi])
+		size := 8*nv*m*int64(bt.End-bt.Start) + 4*m
 		if used+size > budget {
 			continue
 		}
 		used += size
 		p.cached[bi] = true
 		p.slabOff[bi] = total
-		total += int(nv) * m * (bt.End - bt.Start)
+		p.slabLen[bi] = int(nv*m) * (bt.End - bt.Start)
+		total += p.slabLen[bi]
 	}
+	p.kept = nil
 	if total > 0 {
 		p.slab = make([]float64, total)
 		hugepage.Advise(p.slab)
+	}
+}
+
+// ReleaseCache frees the stored function values (for the memory of what
+// follows an SCF, such as a gradient, which does not use them). Later
+// Builds evaluate every batch anew and store nothing.
+func (p *Potential) ReleaseCache() {
+	p.slab, p.slabOff, p.slabLen, p.kept = nil, nil, nil, nil
+	for bi := range p.cache {
+		p.cache[bi] = batchValues{}
+		p.cached[bi] = false
 	}
 }
 
@@ -416,16 +437,8 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 	for _, si := range shells {
 		mAll += p.b.Shells[si].NumFunctions()
 	}
-	// A stored batch is evaluated in its place in the slab, others in
-	// the workspace.
-	var eval []float64
-	if p.cached[bi] {
-		off := p.slabOff[bi]
-		eval = p.slab[off : off+nv*mAll*np : off+nv*mAll*np]
-	} else {
-		ws.eval = resize(ws.eval, nv*mAll*np)
-		eval = ws.eval
-	}
+	ws.eval = resize(ws.eval, nv*mAll*np)
+	eval := ws.eval
 	p.evalFunctions(eval, ws, bt.Start, np, shells, mAll, gga)
 	// Keep the functions that reach functionCutoff (value or a derivative)
 	// somewhere on the batch, moving their rows down in place.
@@ -460,10 +473,15 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 		}
 	}
 	fns, vals := ws.fns, eval[:nv*m*np]
-	if p.cached[bi] {
+	if p.kept != nil {
+		p.kept[bi] = int32(m)
+	}
+	if p.cached[bi] && len(vals) == p.slabLen[bi] {
 		c := &p.cache[bi]
+		off := p.slabOff[bi]
 		c.fns = append([]int32(nil), fns...)
-		c.vals = vals[:len(vals):len(vals)] // in place in the slab
+		c.vals = p.slab[off : off+len(vals) : off+len(vals)]
+		copy(c.vals, vals)
 		return c.fns, c.vals
 	}
 	return fns, vals

@@ -79,12 +79,13 @@ func New(ctx context.Context, orb, aux *integral.Basis, threads int) (*Fit, erro
 	return f, nil
 }
 
-// PeakBytes is the most memory a fit of nbf orbital and naux auxiliary
-// functions holds at once, in its gradient: B and the gradient's G
-// (naux·nbf(nbf+1)/2 values each), the metric's factor and its inverse.
-func PeakBytes(nbf, naux int) int64 {
+// HeldBytes is the memory a fit of nbf orbital and naux auxiliary
+// functions holds from its construction to its gradient: B and the
+// metric's factor. Its gradient needs as much again (G, the same size as
+// B, and the metric's inverse).
+func HeldBytes(nbf, naux int) int64 {
 	npair := int64(nbf) * int64(nbf+1) / 2
-	return 8 * (2*int64(naux)*npair + 2*int64(naux)*int64(naux))
+	return 8 * (int64(naux)*npair + int64(naux)*int64(naux))
 }
 
 // pairIndex is the packed index of the orbital pair μ ≥ ν.
