@@ -35,11 +35,6 @@ import (
 	"poise/energy/basis"
 )
 
-// threeGradPairsPerChunk is the fixed number of orbital shell pairs (each
-// with every auxiliary shell) forming one unit of parallel work of
-// ThreeCentre.Gradient; chunk results are summed in chunk order.
-const threeGradPairsPerChunk = 16
-
 // twoGradPairsPerChunk is the same for auxiliary shell pairs in
 // TwoCentreGradient and TwoCentre.
 const twoGradPairsPerChunk = 256
@@ -375,9 +370,9 @@ func (t *ThreeCentre) addDeriv(g []float64, sh [4]int, gA, gB, gC [3]float64) {
 //
 // Triples (ab|P) whose estimate Q_ab·Q_P·max|G| (Schwarz factors of the
 // pair and of P, largest G of the block) is below derivScreenThreshold are
-// skipped, as are those on a single atom (rigid translation). Orbital
-// shell pairs are cut into fixed chunks of threeGradPairsPerChunk, each
-// with every auxiliary shell, processed by threads goroutines (≤ 0: all
+// skipped, as are those on a single atom (rigid translation). Every
+// auxiliary shell, with all orbital shell pairs, is one chunk (so that G
+// is read row by row, in order), processed by threads goroutines (≤ 0: all
 // cores) and summed in chunk order, so the result does not depend on
 // threads.
 func (t *ThreeCentre) Gradient(G []float64, natoms, threads int) [][3]float64 {
@@ -390,14 +385,12 @@ func (t *ThreeCentre) Gradient(G []float64, natoms, threads int) [][3]float64 {
 	d := t.newDeriv()
 	dOrb, dAux := t.derivPairs(true)
 	np := t.norb * (t.norb + 1) / 2
-	nc := (np + threeGradPairsPerChunk - 1) / threeGradPairsPerChunk
-	return reduceChunks(nc, natoms, threads,
+	return reduceChunks(t.naux, natoms, threads,
 		func() *threeDerivWork { return t.newDerivWork(d) },
-		func(tw *threeDerivWork, c int, g []float64) {
-			start := c * threeGradPairsPerChunk
-			a, b := triDecode(start)
-			for x := start; x < min(start+threeGradPairsPerChunk, np); x++ {
-				t.pairGradient(d, tw, G, npair, a, b, &dOrb[x], dAux, g)
+		func(tw *threeDerivWork, p int, g []float64) {
+			a, b := 0, 0
+			for x := 0; x < np; x++ {
+				t.tripleGradient(d, tw, G, npair, a, b, p, &dOrb[x], &dAux[p], g)
 				b++
 				if b > a {
 					a++
@@ -407,88 +400,85 @@ func (t *ThreeCentre) Gradient(G []float64, natoms, threads int) [][3]float64 {
 		})
 }
 
-// pairGradient adds the contributions of orbital shells a ≥ b with every
-// auxiliary shell to g.
-func (t *ThreeCentre) pairGradient(d *eriDeriv, tw *threeDerivWork, G []float64, npair, a, b int, dp *derivPair, dAux []derivPair, g []float64) {
+// tripleGradient adds the contribution of orbital shells a ≥ b with the
+// auxiliary shell p to g.
+func (t *ThreeCentre) tripleGradient(d *eriDeriv, tw *threeDerivWork, G []float64, npair, a, b, p int, dp, dq *derivPair, g []float64) {
+	ps := t.norb + p
+	if t.atom[a] == t.atom[b] && t.atom[a] == t.atom[ps] {
+		return
+	}
 	orb := t.orb
 	sa, sb := &orb.shells[a], &orb.shells[b]
-	qab := t.OrbitalSchwarz(a, b)
 	fac := 2.0
 	if a == b {
 		fac = 1
 	}
 	oa, ob := orb.Offsets[a], orb.Offsets[b]
 	fa, fb, ca, cb := sa.nfunc, sb.nfunc, sa.ncart, sb.ncart
-	for p := 0; p < t.naux; p++ {
-		ps := t.norb + p
-		if t.atom[a] == t.atom[b] && t.atom[a] == t.atom[ps] {
-			continue
-		}
-		sp := &t.aux.shells[p]
-		fp, cp := sp.nfunc, sp.ncart
-		op := t.aux.Offsets[p]
-		// G block over final functions [P][a][b].
-		gf := tw.gf[:fp*fa*fb]
-		var gmax float64
-		for i := 0; i < fp; i++ {
-			row := G[(op+i)*npair:]
-			for x := 0; x < fa; x++ {
-				mu := oa + x
-				for y := 0; y < fb; y++ {
-					nu := ob + y
-					var val float64
-					if mu >= nu {
-						val = row[mu*(mu+1)/2+nu]
-					} else {
-						val = row[nu*(nu+1)/2+mu]
-					}
-					gf[(i*fa+x)*fb+y] = val
-					gmax = math.Max(gmax, math.Abs(val))
+	sp := &t.aux.shells[p]
+	fp, cp := sp.nfunc, sp.ncart
+	op := t.aux.Offsets[p]
+	// G block over final functions [P][a][b].
+	gf := tw.gf[:fp*fa*fb]
+	var gmax float64
+	for i := 0; i < fp; i++ {
+		row := G[(op+i)*npair:]
+		for x := 0; x < fa; x++ {
+			mu := oa + x
+			for y := 0; y < fb; y++ {
+				nu := ob + y
+				var val float64
+				if mu >= nu {
+					val = row[mu*(mu+1)/2+nu]
+				} else {
+					val = row[nu*(nu+1)/2+mu]
 				}
+				gf[(i*fa+x)*fb+y] = val
+				gmax = math.Max(gmax, math.Abs(val))
 			}
 		}
-		gmax *= fac
-		if qab*t.auxSchwarz[p]*gmax < derivScreenThreshold {
-			continue
-		}
-		// To Cartesian components: [cP][ca][cb].
-		transformCartesian(tw.t1[:fp*fa*cb], gf, fp*fa, fb, cb, 1, sb.trans)
-		transformCartesian(tw.t2[:fp*ca*cb], tw.t1, fp, fa, ca, cb, sa.trans)
-		gc := tw.t1[:cp*ca*cb]
-		transformCartesian(gc, tw.t2, 1, fp, cp, ca*cb, sp.trans)
-		// Canonical quartet and Γ in its layout.
-		bra, ket := dp, &dAux[p]
-		// Strides in gc of the canonical shells' components.
-		sA, sB := cb, 1
-		if dp.a != a {
-			sA, sB = 1, cb
-		}
-		str := [4]int{sA, sB, ca * cb, 0}
-		if ket.key() > bra.key() {
-			bra, ket = ket, bra
-			str = [4]int{ca * cb, 0, sA, sB}
-		}
-		sh := [4]int{bra.a, bra.b, ket.a, ket.b}
-		var n [4]int
-		for x := 0; x < 4; x++ {
-			n[x] = t.comb.shells[sh[x]].ncart
-		}
-		gam := tw.dw.gam[:n[0]*n[1]*n[2]*n[3]]
-		idx := 0
-		for i0 := 0; i0 < n[0]; i0++ {
-			for i1 := 0; i1 < n[1]; i1++ {
-				for i2 := 0; i2 < n[2]; i2++ {
-					base := i0*str[0] + i1*str[1] + i2*str[2]
-					for i3 := 0; i3 < n[3]; i3++ {
-						gam[idx] = fac * gc[base+i3*str[3]]
-						idx++
-					}
-				}
-			}
-		}
-		gA, gB, gC := t.quartetDeriv(d, tw.dw, bra, ket, gam, gmax)
-		t.addDeriv(g, sh, gA, gB, gC)
 	}
+	gmax *= fac
+	if t.OrbitalSchwarz(a, b)*t.auxSchwarz[p]*gmax < derivScreenThreshold {
+		return
+	}
+	// To Cartesian components: [cP][ca][cb].
+	transformCartesian(tw.t1[:fp*fa*cb], gf, fp*fa, fb, cb, 1, sb.trans)
+	transformCartesian(tw.t2[:fp*ca*cb], tw.t1, fp, fa, ca, cb, sa.trans)
+	gc := tw.t1[:cp*ca*cb]
+	transformCartesian(gc, tw.t2, 1, fp, cp, ca*cb, sp.trans)
+	// Canonical quartet and Γ in its layout.
+	bra, ket := dp, dq
+	// Strides in gc of the canonical shells' components.
+	sA, sB := cb, 1
+	if dp.a != a {
+		sA, sB = 1, cb
+	}
+	str := [4]int{sA, sB, ca * cb, 0}
+	if ket.key() > bra.key() {
+		bra, ket = ket, bra
+		str = [4]int{ca * cb, 0, sA, sB}
+	}
+	sh := [4]int{bra.a, bra.b, ket.a, ket.b}
+	var n [4]int
+	for x := 0; x < 4; x++ {
+		n[x] = t.comb.shells[sh[x]].ncart
+	}
+	gam := tw.dw.gam[:n[0]*n[1]*n[2]*n[3]]
+	idx := 0
+	for i0 := 0; i0 < n[0]; i0++ {
+		for i1 := 0; i1 < n[1]; i1++ {
+			for i2 := 0; i2 < n[2]; i2++ {
+				base := i0*str[0] + i1*str[1] + i2*str[2]
+				for i3 := 0; i3 < n[3]; i3++ {
+					gam[idx] = fac * gc[base+i3*str[3]]
+					idx++
+				}
+			}
+		}
+	}
+	gA, gB, gC := t.quartetDeriv(d, tw.dw, bra, ket, gam, gmax)
+	t.addDeriv(g, sh, gA, gB, gC)
 }
 
 // TwoCentreGradient returns g[A][k] = Σ_{P,Q} H_PQ ∂(P|Q)/∂R_{A,k} for
