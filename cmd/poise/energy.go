@@ -71,6 +71,9 @@ type stabilityReport struct {
 	LowestEigenvalueHartree float64          `json:"lowest_eigenvalue_hartree"`
 	Stable                  bool             `json:"stable"`
 	Followed                []followedReport `json:"followed,omitempty"`
+	// Follow reports whether --stability follow was in force (so that an
+	// instability left over is one following could not remove).
+	Follow bool `json:"follow"`
 }
 
 // followedReport is an unstable solution that was left along its
@@ -195,7 +198,8 @@ func makeEnergyReport(path string, s *setup, res *scf.Result, threads int) *ener
 	}
 	rep.SCFNotes = res.Fallbacks
 	if st := res.Stability; st != nil {
-		sr := &stabilityReport{Kind: st.Kind, LowestEigenvalueHartree: st.LowestEigenvalueHartree, Stable: st.Stable}
+		sr := &stabilityReport{Kind: st.Kind, LowestEigenvalueHartree: st.LowestEigenvalueHartree, Stable: st.Stable,
+			Follow: s.stability == scf.StabilityFollow}
 		for _, f := range res.Followed {
 			sr.Followed = append(sr.Followed, followedReport{Kind: f.Kind, EnergyHartree: f.EnergyHartree, LowestEigenvalueHartree: f.LowestEigenvalueHartree})
 		}
@@ -258,7 +262,11 @@ func printEnergyReport(w io.Writer, rep *energyReport, res *scf.Result) error {
 			fmt.Fprintf(w, "stability: %s lowest eigenvalue %.6f Eh at %.10f Eh: unstable, followed\n", f.Kind, f.LowestEigenvalueHartree, f.EnergyHartree)
 		}
 		verdict := "stable"
-		if !st.Stable {
+		switch {
+		case st.Stable:
+		case st.Follow:
+			verdict = "UNSTABLE, left so after following (the SCF notes above say why)"
+		default:
 			verdict = "UNSTABLE (rerun with --stability follow)"
 		}
 		fmt.Fprintf(w, "stability: %s lowest eigenvalue %.6f Eh: %s\n", st.Kind, st.LowestEigenvalueHartree, verdict)

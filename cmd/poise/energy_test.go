@@ -89,3 +89,41 @@ func TestEnergyExitStatuses(t *testing.T) {
 		})
 	}
 }
+
+// The stability line's advice fits the mode: --stability check suggests
+// following; after --stability follow an instability left over is
+// reported as such (singlet O2 at HF/3-21G: following the restricted →
+// unrestricted instability leaves an internal one that has no lower
+// solution along it), not with advice to do what was done.
+func TestEnergyStabilityVerdict(t *testing.T) {
+	xyz := filepath.Join(t.TempDir(), "o2.xyz")
+	if err := os.WriteFile(xyz, []byte("2\nsinglet O2\nO 0 0 0\nO 0 0 1.21\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		mode, want, not string
+		follow          bool
+	}{
+		{"check", "UNSTABLE (rerun with --stability follow)", "after following", false},
+		{"follow", "UNSTABLE, left so after following", "rerun with --stability follow", true},
+	} {
+		args := []string{"energy", xyz, "--method", "hf", "--basis", "3-21g", "--multiplicity", "1", "--stability", c.mode, "--threads", "1"}
+		out, code, err := runCLI(t, args...)
+		if code != exitOK {
+			t.Fatalf("%s: exit %d: %v", c.mode, code, err)
+		}
+		if !strings.Contains(out, c.want) || strings.Contains(out, c.not) {
+			t.Errorf("--stability %s: want %q and not %q in:\n%s", c.mode, c.want, c.not, out)
+		}
+		out, _, _ = runCLI(t, append(args, "--json")...)
+		var rep struct {
+			Stability *struct {
+				Stable bool `json:"stable"`
+				Follow bool `json:"follow"`
+			} `json:"stability"`
+		}
+		if err := json.Unmarshal([]byte(out), &rep); err != nil || rep.Stability == nil || rep.Stability.Follow != c.follow || rep.Stability.Stable {
+			t.Errorf("--stability %s JSON: %+v, %v", c.mode, rep.Stability, err)
+		}
+	}
+}
