@@ -137,9 +137,10 @@ type batchResult struct {
 // total density, or α and β) and adds the potential into v. It returns the
 // energy and the integrated electron count.
 //
-// The first Build of a Potential measures the basis-function values each
-// batch keeps, the second stores those of as many batches as CacheBytes
-// allows (see there), and later Builds reuse them.
+// The first Build of a Potential stores the basis-function values of as
+// many batches as CacheBytes allows (the second, when the budget is too
+// small for all: the first then measures their exact sizes; see
+// prepareCache), and later Builds reuse them.
 // Build is not safe for concurrent use on one Potential.
 func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) (float64, float64, error) {
 	p.prepareCache()
@@ -265,22 +266,15 @@ type batchValues struct {
 }
 
 // prepareCache, called by every Build, decides which batches keep their
-// function values. The first Build only measures how many functions each
-// batch keeps (kept); the second takes the batches in order while their
-// exact size still fits in the budget, sets one slab aside for them and
-// stores their values as it evaluates them. The choice depends on the grid
-// and basis only.
+// function values, in batch order while they fit in the budget. When the
+// upper bounds of all batches (every function of the shells that reach
+// them) fit, the first Build stores them all. Otherwise it only measures
+// how many functions each batch keeps (kept), and the second takes the
+// batches by that exact size, sets one slab aside for them and stores
+// their values as it evaluates them. The choice depends on the grid and
+// basis only.
 func (p *Potential) prepareCache() {
 	nb := len(p.grid.Batches)
-	if p.cache == nil {
-		p.cache = make([]batchValues, nb)
-		p.cached = make([]bool, nb)
-		p.kept = make([]int32, nb)
-		return
-	}
-	if p.kept == nil {
-		return
-	}
 	budget := p.CacheBytes
 	if budget == 0 {
 		budget = DefaultCacheBytes
@@ -289,26 +283,56 @@ func (p *Potential) prepareCache() {
 	if p.fn.IsGGA() {
 		nv = 4
 	}
-	var used int64
-	p.slabOff, p.slabLen = make([]int, nb), make([]int, nb)
-	total := 0
-	for bi, bt := range p.grid.Batches {
-		m := int64(p.kept[bi])
-		size := 8*nv*m*int64(bt.End-bt.Start) + 4*m
-		if used+size > budget {
-			continue
+	// allocate caches the batches whose sizes (functions m(bi)) fit, in
+	// order.
+	allocate := func(m func(bi int) int64) {
+		var used int64
+		p.slabOff, p.slabLen = make([]int, nb), make([]int, nb)
+		total := 0
+		for bi, bt := range p.grid.Batches {
+			mb := m(bi)
+			size := 8*nv*mb*int64(bt.End-bt.Start) + 4*mb
+			if used+size > budget {
+				continue
+			}
+			used += size
+			p.cached[bi] = true
+			p.slabOff[bi] = total
+			p.slabLen[bi] = int(nv*mb) * (bt.End - bt.Start)
+			total += p.slabLen[bi]
 		}
-		used += size
-		p.cached[bi] = true
-		p.slabOff[bi] = total
-		p.slabLen[bi] = int(nv*m) * (bt.End - bt.Start)
-		total += p.slabLen[bi]
+		if total > 0 {
+			p.slab = make([]float64, total)
+			hugepage.Advise(p.slab)
+		}
 	}
+	if p.cache == nil {
+		p.cache = make([]batchValues, nb)
+		p.cached = make([]bool, nb)
+		upper := func(bi int) int64 {
+			m := 0
+			for _, si := range p.batchShells[bi] {
+				m += p.b.Shells[si].NumFunctions()
+			}
+			return int64(m)
+		}
+		var all int64
+		for bi, bt := range p.grid.Batches {
+			m := upper(bi)
+			all += 8*nv*m*int64(bt.End-bt.Start) + 4*m
+		}
+		if all <= budget {
+			allocate(upper)
+			return
+		}
+		p.kept = make([]int32, nb)
+		return
+	}
+	if p.kept == nil {
+		return
+	}
+	allocate(func(bi int) int64 { return int64(p.kept[bi]) })
 	p.kept = nil
-	if total > 0 {
-		p.slab = make([]float64, total)
-		hugepage.Advise(p.slab)
-	}
 }
 
 // ReleaseCache frees the stored function values (for the memory of what
@@ -476,7 +500,7 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 	if p.kept != nil {
 		p.kept[bi] = int32(m)
 	}
-	if p.cached[bi] && len(vals) == p.slabLen[bi] {
+	if p.cached[bi] && len(vals) <= p.slabLen[bi] {
 		c := &p.cache[bi]
 		off := p.slabOff[bi]
 		c.fns = append([]int32(nil), fns...)
