@@ -22,9 +22,7 @@
 //
 //   - The function values (and first derivatives for a GGA) depend only on
 //     the grid and basis of a Potential, so the first Build keeps them for
-//     the later SCF iterations (when they do not all fit, the second, the
-//     first measuring the exact size of each batch's values), batch by
-//     batch in order while they fit in
+//     the later SCF iterations, batch by batch in order while they fit in
 //     Potential.CacheBytes (DefaultCacheBytes, 512 MiB: about 70 % of the
 //     0.7 GB that benzene/6-31G* on the default grid would need; water
 //     needs 40 MB).

@@ -49,14 +49,12 @@ type Potential struct {
 	CacheBytes int64
 	cache      []batchValues // per batch; vals nil until stored
 	cached     []bool        // per batch: store its values
-	// kept is, during the first Build, the number of functions each batch
-	// keeps (the exact size of its stored values); nil afterwards.
-	kept []int32
 	// slab holds the stored values of all cached batches, batch bi from
-	// slabOff[bi] (slabLen[bi] values): one allocation that can be backed
-	// by huge pages (package hugepage).
-	slab             []float64
-	slabOff, slabLen []int
+	// slabOff[bi] with room for all functions of its shells: the values
+	// are evaluated there in place, and it is one allocation that can be
+	// backed by huge pages (package hugepage).
+	slab    []float64
+	slabOff []int
 	// Scratch kept from one Build to the next: the potential blocks of one
 	// group of batches and the per-thread workspaces.
 	results []batchResult
@@ -137,10 +135,8 @@ type batchResult struct {
 // total density, or α and β) and adds the potential into v. It returns the
 // energy and the integrated electron count.
 //
-// The first Build of a Potential stores the basis-function values of as
-// many batches as CacheBytes allows (the second, when the budget is too
-// small for all: the first then measures their exact sizes; see
-// prepareCache), and later Builds reuse them.
+// The first Build of a Potential also stores the basis-function values of
+// as many batches as CacheBytes allows (see there); later Builds reuse them.
 // Build is not safe for concurrent use on one Potential.
 func (p *Potential) Build(ctx context.Context, dens [][]float64, v [][]float64) (float64, float64, error) {
 	p.prepareCache()
@@ -265,16 +261,16 @@ type batchValues struct {
 	vals []float64 // nv blocks of len(fns)×np: φ, ∂xφ, ∂yφ, ∂zφ
 }
 
-// prepareCache, called by every Build, decides which batches keep their
-// function values, in batch order while they fit in the budget. When the
-// upper bounds of all batches (every function of the shells that reach
-// them) fit, the first Build stores them all. Otherwise it only measures
-// how many functions each batch keeps (kept), and the second takes the
-// batches by that exact size, sets one slab aside for them and stores
-// their values as it evaluates them. The choice depends on the grid and
-// basis only.
+// prepareCache decides, once per Potential, which batches keep their
+// function values: the first ones, in batch order, whose upper-bound size
+// (all functions of the shells that reach the batch) still fits in the
+// budget. The choice depends on the grid and basis only.
 func (p *Potential) prepareCache() {
-	nb := len(p.grid.Batches)
+	if p.cache != nil {
+		return
+	}
+	p.cache = make([]batchValues, len(p.grid.Batches))
+	p.cached = make([]bool, len(p.grid.Batches))
 	budget := p.CacheBytes
 	if budget == 0 {
 		budget = DefaultCacheBytes
@@ -283,63 +279,38 @@ func (p *Potential) prepareCache() {
 	if p.fn.IsGGA() {
 		nv = 4
 	}
-	// allocate caches the batches whose sizes (functions m(bi)) fit, in
-	// order.
-	allocate := func(m func(bi int) int64) {
-		var used int64
-		p.slabOff, p.slabLen = make([]int, nb), make([]int, nb)
-		total := 0
-		for bi, bt := range p.grid.Batches {
-			mb := m(bi)
-			size := 8*nv*mb*int64(bt.End-bt.Start) + 4*mb
-			if used+size > budget {
-				continue
-			}
-			used += size
-			p.cached[bi] = true
-			p.slabOff[bi] = total
-			p.slabLen[bi] = int(nv*mb) * (bt.End - bt.Start)
-			total += p.slabLen[bi]
+	var used int64
+	p.slabOff = make([]int, len(p.grid.Batches))
+	total := 0
+	for bi, bt := range p.grid.Batches {
+		m := 0
+		for _, si := range p.batchShells[bi] {
+			m += p.b.Shells[si].NumFunctions()
 		}
-		if total > 0 {
-			p.slab = make([]float64, total)
-			hugepage.Advise(p.slab)
+		size := 8*nv*int64(m)*int64(bt.End-bt.Start) + 4*int64(m)
+		if used+size > budget {
+			continue
 		}
+		used += size
+		p.cached[bi] = true
+		p.slabOff[bi] = total
+		total += int(nv) * m * (bt.End - bt.Start)
 	}
-	if p.cache == nil {
-		p.cache = make([]batchValues, nb)
-		p.cached = make([]bool, nb)
-		upper := func(bi int) int64 {
-			m := 0
-			for _, si := range p.batchShells[bi] {
-				m += p.b.Shells[si].NumFunctions()
-			}
-			return int64(m)
-		}
-		var all int64
-		for bi, bt := range p.grid.Batches {
-			m := upper(bi)
-			all += 8*nv*m*int64(bt.End-bt.Start) + 4*m
-		}
-		if all <= budget {
-			allocate(upper)
-			return
-		}
-		p.kept = make([]int32, nb)
-		return
+	if total > 0 {
+		p.slab = make([]float64, total)
+		hugepage.Advise(p.slab)
 	}
-	if p.kept == nil {
-		return
-	}
-	allocate(func(bi int) int64 { return int64(p.kept[bi]) })
-	p.kept = nil
 }
 
 // ReleaseCache frees the stored function values (for the memory of what
 // follows an SCF, such as a gradient, which does not use them). Later
 // Builds evaluate every batch anew and store nothing.
 func (p *Potential) ReleaseCache() {
-	p.slab, p.slabOff, p.slabLen, p.kept = nil, nil, nil, nil
+	if p.cache == nil { // no Build yet: decide now to store nothing
+		p.cache = make([]batchValues, len(p.grid.Batches))
+		p.cached = make([]bool, len(p.grid.Batches))
+	}
+	p.slab, p.slabOff = nil, nil
 	for bi := range p.cache {
 		p.cache[bi] = batchValues{}
 		p.cached[bi] = false
@@ -461,8 +432,16 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 	for _, si := range shells {
 		mAll += p.b.Shells[si].NumFunctions()
 	}
-	ws.eval = resize(ws.eval, nv*mAll*np)
-	eval := ws.eval
+	// A stored batch is evaluated in its place in the slab, others in
+	// the workspace.
+	var eval []float64
+	if p.cached[bi] {
+		off := p.slabOff[bi]
+		eval = p.slab[off : off+nv*mAll*np : off+nv*mAll*np]
+	} else {
+		ws.eval = resize(ws.eval, nv*mAll*np)
+		eval = ws.eval
+	}
 	p.evalFunctions(eval, ws, bt.Start, np, shells, mAll, gga)
 	// Keep the functions that reach functionCutoff (value or a derivative)
 	// somewhere on the batch, moving their rows down in place.
@@ -497,15 +476,10 @@ func (p *Potential) values(ws *workspace, bi int) ([]int32, []float64) {
 		}
 	}
 	fns, vals := ws.fns, eval[:nv*m*np]
-	if p.kept != nil {
-		p.kept[bi] = int32(m)
-	}
-	if p.cached[bi] && len(vals) <= p.slabLen[bi] {
+	if p.cached[bi] {
 		c := &p.cache[bi]
-		off := p.slabOff[bi]
 		c.fns = append([]int32(nil), fns...)
-		c.vals = p.slab[off : off+len(vals) : off+len(vals)]
-		copy(c.vals, vals)
+		c.vals = vals[:len(vals):len(vals)] // in place in the slab
 		return c.fns, c.vals
 	}
 	return fns, vals
