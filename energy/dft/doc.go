@@ -47,7 +47,7 @@
 //     (madvise), which makes its first touch (0.5 GB for benzene/6-31G*)
 //     about twice as cheap on a virtual machine.
 //
-// Kernels. Four loops carry nearly all the arithmetic, each in a portable
+// Kernels. A few loops carry nearly all the arithmetic, each in a portable
 // Go version and, on amd64 processors with AVX2 and FMA, an assembly
 // version vectorized four doubles wide and
 // chosen at start-up from the processor's features (golang.org/x/sys/cpu),
@@ -56,9 +56,13 @@
 // (lane0+lane1)+(lane2+lane3)), MatMul (C = A·B, the density step
 // U = D φ or L(Lᵀφ); lanes over the columns, 4×12 tiles, the sum over
 // the contraction in order), ColumnDots (ρ and ∇ρ from U; lanes over the
-// points) and expNonPositive (e^x for x ≤ 0, Taylor polynomial of degree
+// points), expNonPositive (e^x for x ≤ 0, Taylor polynomial of degree
 // 13 after reduction by ln 2; within a few units in the last place of
-// math.Exp). Tails of every dimension use masked loads and stores, and in
+// math.Exp), and the Cartesian basis functions from their radial parts:
+// CartesianRows (the value row and three derivative rows of one
+// component, function-major, for the potential) and CartesianDerivatives
+// (values, first and second derivatives of a whole shell, point-major,
+// for the gradient). Tails of every dimension use masked loads and stores, and in
 // every kernel an element's value depends only on its own inputs, never
 // on its position in a tile, so results stay independent of the thread
 // count and of which batches are stored. The vector kernels round

@@ -7,6 +7,7 @@ import (
 	"sync"
 
 	"poise/energy/integral"
+	"poise/energy/internal/kernel"
 )
 
 // Gradient returns the derivative of the exchange–correlation energy with
@@ -114,9 +115,13 @@ type gradWorkspace struct {
 	lim    []float64 // per primitive of a shell: screening bound on αr²
 	rad    radialScratch
 	pw     [3][16][]float64 // powers of the coordinates (evalDerivDiagonal)
+	ones   []float64        // all ones: the rows 0 of pw
+	ts     []float64        // the scales of a shell's functions (evalDerivDiagonal)
 	t      []float64        // np×m: T = Z'D
 	zp     []float64        // np×m: Z'
 	colSum []float64        // 3m
+	bd     batchDensities   // densities of the batch and their scratch
+	coef   coefficients     // the functional on the batch
 }
 
 // gradBatch adds one batch's contribution to out (3·natoms).
@@ -158,10 +163,11 @@ func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, facto
 	if gga {
 		d1 = ws.d1
 	}
-	bd := batchDensity(ws.phi, d1, np, m, fns, p.b.NBF, dens, factors)
+	bd := &ws.bd
+	batchDensity(bd, ws.phi, d1, np, m, fns, p.b.NBF, dens, factors)
 	us := bd.u
 	// Per spin and point: a = w ∂e/∂ρ_s, b_k = w ∂e/∂(∂_kρ_s).
-	_, coefA, coefB := p.potentialCoefficients(bd, w, np)
+	_, coefA, coefB := p.potentialCoefficients(&ws.coef, bd, w, np)
 
 	// Fixed-point derivatives per function: colSum[3c+j] accumulates
 	// Σ_p [∂_jφ_pc T_pc + Σ_k b_pk ∂_j∂_kφ_pc U_pc] over points and spins,
@@ -392,9 +398,11 @@ func evalFunctionDerivatives(b *integral.Basis, ws *gradWorkspace, start, np int
 
 // evalDerivDiagonal is evalFunctionDerivatives for one shell with a
 // diagonal transform whose radial sums are in rs (as the general path,
-// faster): function c is t_c P(r) R(r) with the monomial
-// P = x^{e0} y^{e1} z^{e2}, evaluated one function at a time over the np
-// points gx, gy, gz into column col of the point-major blocks of width m.
+// faster, agreeing with it to rounding): function c is t_c P(r) R(r) with
+// the monomial P = x^{e0} y^{e1} z^{e2}, evaluated at the np points gx, gy,
+// gz by the vector kernel kernel.CartesianDerivatives (all the functions of
+// a few points at a time) into columns col… of the point-major blocks of
+// width m.
 func evalDerivDiagonal(ws *gradWorkspace, rs *radialScratch, gx, gy, gz []float64, center [3]float64, comps [][3]int, trans []float64, col, np, m int, second bool) {
 	nc := len(comps)
 	l := 0
@@ -410,13 +418,14 @@ func evalDerivDiagonal(ws *gradWorkspace, rs *radialScratch, gx, gy, gz []float6
 		}
 	}
 	n := max(l, 1) + 1
+	one := onesRow(&ws.ones, np)
 	for axis, bc := range [3][]float64{gx[:np], gy[:np], gz[:np]} {
-		for k := 0; k < n; k++ {
+		ws.pw[axis][0] = one
+		for k := 1; k < n; k++ {
 			ws.pw[axis][k] = resize(ws.pw[axis][k], np)
 		}
-		one, d := ws.pw[axis][0], ws.pw[axis][1]
+		d := ws.pw[axis][1]
 		for pt, v := range bc {
-			one[pt] = 1
 			d[pt] = v - center[axis]
 		}
 		for k := 2; k < n; k++ {
@@ -426,53 +435,19 @@ func evalDerivDiagonal(ws *gradWorkspace, rs *radialScratch, gx, gy, gz []float6
 			}
 		}
 	}
-	dx, dy, dz := ws.pw[0][1], ws.pw[1][1], ws.pw[2][1]
-	zero := ws.pw[0][0][:0] // placeholder for absent derivative powers
-	for c, e := range comps {
-		t := trans[c*nc+c]
-		// x^e, e x^{e−1}, e(e−1) x^{e−2} per axis: the power rows and
-		// their factors (0 where the derivative vanishes).
-		var p0, p1, p2 [3][]float64
-		var k1, k2 [3]float64
-		for a := 0; a < 3; a++ {
-			p0[a], p1[a], p2[a] = ws.pw[a][e[a]], zero, zero
-			if e[a] >= 1 {
-				p1[a], k1[a] = ws.pw[a][e[a]-1], float64(e[a])
-			}
-			if e[a] >= 2 {
-				p2[a], k2[a] = ws.pw[a][e[a]-2], float64(e[a]*(e[a]-1))
-			}
-		}
-		at := func(s []float64, pt int) float64 {
-			if len(s) == 0 {
-				return 0
-			}
-			return s[pt]
-		}
-		for pt := 0; pt < np; pt++ {
-			x0, y0, z0 := p0[0][pt], p0[1][pt], p0[2][pt]
-			x1, y1, z1 := k1[0]*at(p1[0], pt), k1[1]*at(p1[1], pt), k1[2]*at(p1[2], pt)
-			rx, ry, rz := dx[pt], dy[pt], dz[pt]
-			rad, d1r := f0[pt], f1[pt]
-			poly := x0 * y0 * z0
-			px, py, pz := x1*y0*z0, x0*y1*z0, x0*y0*z1
-			i := pt*m + col + c
-			ws.phi[i] = t * (poly * rad)
-			ws.d1[0][i] = t * (px*rad + poly*d1r*rx)
-			ws.d1[1][i] = t * (py*rad + poly*d1r*ry)
-			ws.d1[2][i] = t * (pz*rad + poly*d1r*rz)
-			if !second {
-				continue
-			}
-			x2, y2, z2 := k2[0]*at(p2[0], pt), k2[1]*at(p2[1], pt), k2[2]*at(p2[2], pt)
-			pd2 := poly * f2[pt]
-			pd1 := poly * d1r
-			ws.d2[0][i] = t * (x2*y0*z0*rad + (px*rx+px*rx)*d1r + pd2*rx*rx + pd1)
-			ws.d2[1][i] = t * (x1*y1*z0*rad + (px*ry+py*rx)*d1r + pd2*rx*ry)
-			ws.d2[2][i] = t * (x1*y0*z1*rad + (px*rz+pz*rx)*d1r + pd2*rx*rz)
-			ws.d2[3][i] = t * (x0*y2*z0*rad + (py*ry+py*ry)*d1r + pd2*ry*ry + pd1)
-			ws.d2[4][i] = t * (x0*y1*z1*rad + (py*rz+pz*ry)*d1r + pd2*ry*rz)
-			ws.d2[5][i] = t * (x0*y0*z2*rad + (pz*rz+pz*rz)*d1r + pd2*rz*rz + pd1)
-		}
+	tab := [3][][]float64{ws.pw[0][:], ws.pw[1][:], ws.pw[2][:]}
+	ws.ts = ws.ts[:0]
+	for c := range comps {
+		ws.ts = append(ws.ts, trans[c*nc+c])
 	}
+	d1 := [3][]float64{ws.d1[0][col:], ws.d1[1][col:], ws.d1[2][col:]}
+	if !second {
+		kernel.CartesianDerivatives(comps, ws.ts, tab, f0, f1, f2, np, ws.phi[col:], &d1, nil, m)
+		return
+	}
+	var d2 [6][]float64
+	for k := range d2 {
+		d2[k] = ws.d2[k][col:]
+	}
+	kernel.CartesianDerivatives(comps, ws.ts, tab, f0, f1, f2, np, ws.phi[col:], &d1, &d2, m)
 }

@@ -350,6 +350,7 @@ type workspace struct {
 	grdViews [][3][]float64
 	rad      radialScratch
 	pw       [3][16][]float64 // powers of the coordinates (evalDiagonal)
+	ones     []float64        // all ones: the rows 0 of pw
 }
 
 // radialScratch holds, for the points of a batch and one shell, the squared
@@ -359,14 +360,29 @@ type radialScratch struct {
 	r2, arg, ex, f0, f1, f2 []float64
 }
 
-// powers returns pw[axis][k] (k < n), scratch rows of np points.
+// powers returns pw[axis][k] (k < n), scratch rows of np points, the rows
+// 0 already all ones (and not to be written).
 func (ws *workspace) powers(n, np int) *[3][16][]float64 {
+	one := onesRow(&ws.ones, np)
 	for axis := range ws.pw {
-		for k := 0; k < n; k++ {
+		ws.pw[axis][0] = one
+		for k := 1; k < n; k++ {
 			ws.pw[axis][k] = resize(ws.pw[axis][k], np)
 		}
 	}
 	return &ws.pw
+}
+
+// onesRow returns np ones from *buf, which keeps them from one call to the
+// next (filled again only when it grows).
+func onesRow(buf *[]float64, np int) []float64 {
+	if len(*buf) < np {
+		*buf = make([]float64, np)
+		for i := range *buf {
+			(*buf)[i] = 1
+		}
+	}
+	return (*buf)[:np]
 }
 
 // radial returns the scratch sized for np points with f0, f1, f2 zeroed.
@@ -838,8 +854,10 @@ func diagonalTransform(trans []float64, nf, nc int) bool {
 // evalDiagonal is evalFunctions for one shell with a diagonal transform
 // (as evalGeneral, faster),
 // whose radial sums are in rs: function c is t_c x^{e0} y^{e1} z^{e2} R(r),
-// computed one function row at a time over the points with the same
-// arithmetic, term by term, as the general path.
+// computed one function row at a time over the points by the vector
+// kernel kernel.CartesianRows. The results agree with the general path to
+// rounding (the kernel groups the factors differently and fuses
+// multiply–adds); each depends only on its point's inputs.
 func evalDiagonal(out []float64, ws *workspace, rs *radialScratch, bx, by, bz []float64, center [3]float64, comps [][3]int, trans []float64, col, np, m int, gga bool) {
 	nc := len(comps)
 	l := 0
@@ -856,9 +874,8 @@ func evalDiagonal(out []float64, ws *workspace, rs *radialScratch, bx, by, bz []
 	// Powers x^k, y^k, z^k of the coordinates relative to the center.
 	pw := ws.powers(max(l, 1)+1, np)
 	for axis, bc := range [3][]float64{bx[:np], by[:np], bz[:np]} {
-		one, d := pw[axis][0], pw[axis][1]
+		d := pw[axis][1]
 		for pt, v := range bc {
-			one[pt] = 1
 			d[pt] = v - center[axis]
 		}
 		for k := 2; k <= l; k++ {
@@ -868,37 +885,26 @@ func evalDiagonal(out []float64, ws *workspace, rs *radialScratch, bx, by, bz []
 			}
 		}
 	}
-	dx, dy, dz := pw[0][1], pw[1][1], pw[2][1]
+	tab := [3][][]float64{pw[0][:], pw[1][:], pw[2][:]}
 	for c, e := range comps {
 		t := trans[c*nc+c]
-		px, py, pz := pw[0][e[0]], pw[1][e[1]], pw[2][e[2]]
 		v := out[(col+c)*np : (col+c+1)*np]
-		for pt := range v {
-			v[pt] = t * (px[pt] * py[pt] * pz[pt] * rad[pt])
-		}
 		if !gga {
+			kernel.CartesianRows(e, t, tab, rad, drad, np, v, nil)
 			continue
 		}
 		// ∂_j φ = t (e_j x_j^{e_j−1} Π_{k≠j} x_k^{e_k} R + P R' r_j).
-		for j, dj := range [3][]float64{dx, dy, dz} {
-			g := out[((j+1)*m+col+c)*np : ((j+1)*m+col+c+1)*np]
-			if e[j] == 0 {
-				for pt := range g {
-					g[pt] = t * (px[pt] * py[pt] * pz[pt] * drad[pt] * dj[pt])
-				}
-				continue
-			}
-			q := [3][]float64{px, py, pz}
-			q[j] = pw[j][e[j]-1]
-			ej := float64(e[j])
-			for pt := range g {
-				g[pt] = t * (ej*q[0][pt]*q[1][pt]*q[2][pt]*rad[pt] + px[pt]*py[pt]*pz[pt]*drad[pt]*dj[pt])
-			}
+		var g [3][]float64
+		for j := range g {
+			g[j] = out[((j+1)*m+col+c)*np : ((j+1)*m+col+c+1)*np]
 		}
+		kernel.CartesianRows(e, t, tab, rad, drad, np, v, &g)
 	}
 }
 
-// batchDensities are the densities of one batch of points, per spin.
+// batchDensities are the densities of one batch of points, per spin, and
+// the scratch they are formed in (kept from one batch to the next by the
+// gradient's workspace, so that a batch allocates nothing).
 type batchDensities struct {
 	rho  [][]float64    // ρ_s at the points
 	grad [][3][]float64 // ∇ρ_s (GGA only)
@@ -906,6 +912,12 @@ type batchDensities struct {
 	lsub [][]float64    // else D_s ≈ L Lᵀ: the m×r rows of L of the functions
 	rank []int
 	u    [][]float64 // U = φ·D_sub (np×m), reused by the gradient
+	// Scratch of mulD and the per-spin buffers behind the views above.
+	lt, y   []float64
+	dbuf    [][]float64
+	lbuf    [][]float64
+	rhoBuf  [][]float64
+	gradBuf [][3][]float64
 }
 
 // mulD sets out (np×m) to x·D_sub of spin s for a point-major np×m block x.
@@ -916,54 +928,67 @@ func (bd *batchDensities) mulD(s int, x []float64, np, m int, out []float64) {
 	}
 	r := bd.rank[s]
 	l := bd.lsub[s]
-	lt := make([]float64, r*m)
-	kernel.Transpose(l, m, r, lt)
-	y := make([]float64, np*r)
-	kernel.DotProducts(x, np, lt, r, m, y, r) // x L
-	kernel.DotProducts(y, np, l, m, r, out, m)
+	bd.lt = resize(bd.lt, r*m)
+	kernel.Transpose(l, m, r, bd.lt)
+	bd.y = resize(bd.y, np*r)
+	kernel.DotProducts(x, np, bd.lt, r, m, bd.y, r) // x L
+	kernel.DotProducts(bd.y, np, l, m, r, out, m)
 }
 
-// batchDensity forms ρ_s = Σ_μν D_μν φ_μ φ_ν and, when d1 (the first
-// derivatives of the functions, np×m each) is given, ∇ρ_s = 2 Σ_μν D_μν
-// φ_μ ∇φ_ν at the np points whose function values (np×m) are phi, for the
-// m functions fns of a basis of n. Where factors[s] is a usable factor
-// of D_s of rank r with 2r < m, products with D_sub go through it.
-func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, dens [][]float64, factors []densityFactor) batchDensities {
+// batchDensity sets bd to ρ_s = Σ_μν D_μν φ_μ φ_ν and, when d1 (the
+// first derivatives of the functions, np×m each) is given, ∇ρ_s = 2 Σ_μν
+// D_μν φ_μ ∇φ_ν at the np points whose function values (np×m) are phi,
+// for the m functions fns of a basis of n. Where factors[s] is a usable
+// factor of D_s of rank r with 2r < m, products with D_sub go through it.
+// bd's earlier contents are overwritten; its buffers are reused.
+func batchDensity(bd *batchDensities, phi []float64, d1 [3][]float64, np, m int, fns []int, n int, dens [][]float64, factors []densityFactor) {
 	nspin := len(dens)
 	gga := d1[0] != nil
-	out := batchDensities{
-		rho:  make([][]float64, nspin),
-		grad: make([][3][]float64, nspin),
-		dsub: make([][]float64, nspin),
-		lsub: make([][]float64, nspin),
-		rank: make([]int, nspin),
-		u:    make([][]float64, nspin),
+	if len(bd.rho) != nspin {
+		*bd = batchDensities{
+			rho:     make([][]float64, nspin),
+			grad:    make([][3][]float64, nspin),
+			dsub:    make([][]float64, nspin),
+			lsub:    make([][]float64, nspin),
+			rank:    make([]int, nspin),
+			u:       make([][]float64, nspin),
+			dbuf:    make([][]float64, nspin),
+			lbuf:    make([][]float64, nspin),
+			rhoBuf:  make([][]float64, nspin),
+			gradBuf: make([][3][]float64, nspin),
+		}
 	}
 	for s := 0; s < nspin; s++ {
+		bd.dsub[s], bd.lsub[s], bd.rank[s] = nil, nil, 0
 		if f := factors[s]; f.ok && 2*f.rank < m {
 			r := f.rank
-			l := make([]float64, m*r)
+			bd.lbuf[s] = resize(bd.lbuf[s], m*r)
+			l := bd.lbuf[s]
 			for a, fa := range fns {
 				copy(l[a*r:a*r+r], f.l[fa*r:fa*r+r])
 			}
-			out.lsub[s], out.rank[s] = l, r
+			bd.lsub[s], bd.rank[s] = l, r
 		} else {
-			dsub := make([]float64, m*m)
+			bd.dbuf[s] = resize(bd.dbuf[s], m*m)
+			dsub := bd.dbuf[s]
 			for a := 0; a < m; a++ {
 				row := fns[a] * n
 				for b := 0; b < m; b++ {
 					dsub[a*m+b] = dens[s][row+fns[b]]
 				}
 			}
-			out.dsub[s] = dsub
+			bd.dsub[s] = dsub
 		}
-		u := make([]float64, np*m)
-		out.mulD(s, phi, np, m, u)
-		r := make([]float64, np)
+		bd.u[s] = resize(bd.u[s], np*m)
+		u := bd.u[s]
+		bd.mulD(s, phi, np, m, u)
+		bd.rhoBuf[s] = resize(bd.rhoBuf[s], np)
+		r := bd.rhoBuf[s]
 		var gr [3][]float64
 		if gga {
 			for k := range gr {
-				gr[k] = make([]float64, np)
+				bd.gradBuf[s][k] = resize(bd.gradBuf[s][k], np)
+				gr[k] = bd.gradBuf[s][k]
 			}
 		}
 		for pt := 0; pt < np; pt++ {
@@ -985,18 +1010,17 @@ func batchDensity(phi []float64, d1 [3][]float64, np, m int, fns []int, n int, d
 				}
 			}
 		}
-		out.rho[s], out.grad[s], out.u[s] = r, gr, u
+		bd.rho[s], bd.grad[s] = r, gr
 	}
-	return out
 }
 
 // potentialCoefficients evaluates the functional at the points of a batch
 // and returns the energy density e and, per spin, a_s = w ∂e/∂ρ_s and (GGA)
 // the vector b_s = w ∂e/∂(∇ρ_s): 2 ∂e/∂σ ∇ρ for a total density,
 // 2 ∂e/∂σ_ss ∇ρ_s + ∂e/∂σ_αβ ∇ρ_s' for spin densities.
-func (p *Potential) potentialCoefficients(bd batchDensities, w []float64, np int) (e []float64, a [][]float64, b [][3][]float64) {
-	var c coefficients
-	p.coefficients(&c, bd.rho, bd.grad, w, np)
+// c is the scratch they are formed in.
+func (p *Potential) potentialCoefficients(c *coefficients, bd *batchDensities, w []float64, np int) (e []float64, a [][]float64, b [][3][]float64) {
+	p.coefficients(c, bd.rho, bd.grad, w, np)
 	nspin := len(bd.rho)
 	return c.e, c.a[:nspin], c.b[:nspin]
 }

@@ -159,3 +159,225 @@ func Transpose(src []float64, rows, cols int, dst []float64) {
 		}
 	}
 }
+
+// cartesianAxes orders the axes as the Cartesian row kernels take them:
+// the n axes with a positive exponent first, then the others, each group
+// in axis order.
+func cartesianAxes(e [3]int) (ax [3]int, n int) {
+	for a := 0; a < 3; a++ {
+		if e[a] > 0 {
+			ax[n] = a
+			n++
+		}
+	}
+	k := n
+	for a := 0; a < 3; a++ {
+		if e[a] <= 0 {
+			ax[k] = a
+			k++
+		}
+	}
+	return ax, n
+}
+
+// cartesianRowsGo is the portable kernel behind CartesianRows. With the n
+// axes of positive exponent first (a, b, c) and P = p_a·p_b·p_c over those
+// axes only (p_a = x_a^{e_a}, l_a = x_a^{e_a−1}), every point gets
+//
+//	v   = t·(P·R)
+//	g_j = tPD·x_j + (t·e_j)·(Q_j·R)   (axes with e_j > 0)
+//	g_j = tPD·x_j                     (the others)
+//
+// with tPD = t·(P·R′) and Q_a = l_a, or l_a·p_b and p_a·l_b, or
+// l_a·(p_b·p_c), (p_a·l_b)·p_c and (p_a·p_b)·l_c for n = 1, 2, 3; the vector
+// kernel fuses the last multiply–add of g_j. For an s function (n = 0)
+// there is no polynomial: v = t·R and g_j = (t·R′)·x_j.
+func cartesianRowsGo(e [3]int, t float64, pw [3][][]float64, rad, drad []float64, np int, v []float64, g *[3][]float64) {
+	if np == 0 {
+		return
+	}
+	ax, n := cartesianAxes(e)
+	rad, v = rad[:np], v[:np]
+	var p, lo, d, gr [3][]float64
+	var te [3]float64
+	for i, a := range ax {
+		if i < n {
+			p[i], lo[i] = pw[a][e[a]][:np], pw[a][e[a]-1][:np]
+			te[i] = t * float64(e[a])
+		}
+		if g != nil {
+			d[i], gr[i] = pw[a][1][:np], g[a][:np]
+		}
+	}
+	if g == nil {
+		switch n {
+		case 0:
+			for pt, r := range rad {
+				v[pt] = t * r
+			}
+		case 1:
+			for pt, r := range rad {
+				v[pt] = t * (p[0][pt] * r)
+			}
+		case 2:
+			for pt, r := range rad {
+				v[pt] = t * (p[0][pt] * p[1][pt] * r)
+			}
+		default:
+			for pt, r := range rad {
+				v[pt] = t * (p[0][pt] * p[1][pt] * p[2][pt] * r)
+			}
+		}
+		return
+	}
+	drad = drad[:np]
+	switch n {
+	case 0:
+		for pt, r := range rad {
+			v[pt] = t * r
+			tpd := t * drad[pt]
+			gr[0][pt] = tpd * d[0][pt]
+			gr[1][pt] = tpd * d[1][pt]
+			gr[2][pt] = tpd * d[2][pt]
+		}
+	case 1:
+		for pt, r := range rad {
+			pp := p[0][pt]
+			v[pt] = t * (pp * r)
+			tpd := t * (pp * drad[pt])
+			gr[0][pt] = tpd*d[0][pt] + te[0]*(lo[0][pt]*r)
+			gr[1][pt] = tpd * d[1][pt]
+			gr[2][pt] = tpd * d[2][pt]
+		}
+	case 2:
+		for pt, r := range rad {
+			pa, pb := p[0][pt], p[1][pt]
+			pp := pa * pb
+			v[pt] = t * (pp * r)
+			tpd := t * (pp * drad[pt])
+			gr[0][pt] = tpd*d[0][pt] + te[0]*(lo[0][pt]*pb*r)
+			gr[1][pt] = tpd*d[1][pt] + te[1]*(pa*lo[1][pt]*r)
+			gr[2][pt] = tpd * d[2][pt]
+		}
+	default:
+		for pt, r := range rad {
+			pa, pb, pc := p[0][pt], p[1][pt], p[2][pt]
+			ab := pa * pb
+			pp := ab * pc
+			v[pt] = t * (pp * r)
+			tpd := t * (pp * drad[pt])
+			gr[0][pt] = tpd*d[0][pt] + te[0]*(lo[0][pt]*(pb*pc)*r)
+			gr[1][pt] = tpd*d[1][pt] + te[1]*(pa*lo[1][pt]*pc*r)
+			gr[2][pt] = tpd*d[2][pt] + te[2]*(ab*lo[2][pt]*r)
+		}
+	}
+}
+
+// cartesianDerivativesGo is the portable kernel behind
+// CartesianDerivatives: cartesianComponentGo for each component in turn,
+// component c in column c.
+func cartesianDerivativesGo(comps [][3]int, ts []float64, pw [3][][]float64, rad, d1r, d2r []float64, np int, phi []float64, d1 *[3][]float64, d2 *[6][]float64, ld int) {
+	if np == 0 {
+		return
+	}
+	for c, e := range comps {
+		d1c := [3][]float64{d1[0][c:], d1[1][c:], d1[2][c:]}
+		var d2c *[6][]float64
+		if d2 != nil {
+			d2c = &[6][]float64{d2[0][c:], d2[1][c:], d2[2][c:], d2[3][c:], d2[4][c:], d2[5][c:]}
+		}
+		cartesianComponentGo(e, ts[c], pw, rad, d1r, d2r, np, phi[c:], &d1c, d2c, ld)
+	}
+}
+
+// cartesianComponentGo sets the value, first and (with d2) second
+// derivatives of one Cartesian component t·x^{e_x} y^{e_y} z^{e_z}·R at
+// element p·ld of phi, d1[j], d2[i] for the np points. With, per axis,
+// x_0 = x^{e}, x_1 = e·x^{e−1} and x_2 = e(e−1)·x^{e−2} (0 where the
+// exponent is too small), the monomial P = x_0·(y_0 z_0), its derivatives
+// p_x = x_1·(y_0 z_0), p_y = y_1·(x_0 z_0), p_z = z_1·(x_0 y_0), and
+// T = t·R, T1 = t·R′, T2 = t·R″ (R′ = d1r, R″ = d2r), every point gets
+//
+//	φ       = P·T
+//	∂_jφ    = (P·T1)·x_j + p_j·T
+//	∂_j∂_jφ = ((x_2·O_j)·T + P·T1) + (u_j + s_j)·x_j
+//	∂_j∂_kφ = (((x_1 y_1)·O_jk)·T + s_k·x_j) + u_j·x_k    (j < k)
+//
+// with s_j = p_j·T1, u_j = (P·T2)·x_j + s_j, O_x = y_0 z_0 (and so on) and
+// O_jk the zeroth power of the third axis, each sum in that order; the
+// vector kernel fuses every product into the sum that follows it. For an s
+// function (all exponents 0) P = 1 and the terms in p_j and x_2 vanish:
+// φ = T, ∂_jφ = T1·x_j, ∂_j∂_jφ = T1 + u_j·x_j, ∂_j∂_kφ = u_j·x_k.
+func cartesianComponentGo(e [3]int, t float64, pw [3][][]float64, rad, d1r, d2r []float64, np int, phi []float64, d1 *[3][]float64, d2 *[6][]float64, ld int) {
+	if np == 0 {
+		return
+	}
+	rx, ry, rz := pw[0][1][:np], pw[1][1][:np], pw[2][1][:np]
+	rad, d1r = rad[:np], d1r[:np]
+	if d2 != nil {
+		d2r = d2r[:np]
+	}
+	if e == [3]int{} {
+		for pt, r := range rad {
+			o := pt * ld
+			x, y, z := rx[pt], ry[pt], rz[pt]
+			td1 := t * d1r[pt]
+			phi[o] = t * r
+			d1[0][o] = td1 * x
+			d1[1][o] = td1 * y
+			d1[2][o] = td1 * z
+			if d2 == nil {
+				continue
+			}
+			td2 := t * d2r[pt]
+			ux, uy, uz := td2*x, td2*y, td2*z
+			d2[0][o] = td1 + ux*x
+			d2[1][o] = ux * y
+			d2[2][o] = ux * z
+			d2[3][o] = td1 + uy*y
+			d2[4][o] = uy * z
+			d2[5][o] = td1 + uz*z
+		}
+		return
+	}
+	var p0, p1, p2 [3][]float64
+	var k1, k2 [3]float64
+	for a := 0; a < 3; a++ {
+		p0[a], p1[a], p2[a] = pw[a][e[a]][:np], pw[a][0][:np], pw[a][0][:np]
+		if e[a] >= 1 {
+			p1[a], k1[a] = pw[a][e[a]-1][:np], float64(e[a])
+		}
+		if e[a] >= 2 {
+			p2[a], k2[a] = pw[a][e[a]-2][:np], float64(e[a]*(e[a]-1))
+		}
+	}
+	for pt, r := range rad {
+		o := pt * ld
+		x0, y0, z0 := p0[0][pt], p0[1][pt], p0[2][pt]
+		x1, y1, z1 := k1[0]*p1[0][pt], k1[1]*p1[1][pt], k1[2]*p1[2][pt]
+		yz, xz, xy := y0*z0, x0*z0, x0*y0
+		poly := x0 * yz
+		px, py, pz := x1*yz, y1*xz, z1*xy
+		trad := t * r
+		td1 := t * d1r[pt]
+		tpd1 := poly * td1
+		x, y, z := rx[pt], ry[pt], rz[pt]
+		phi[o] = poly * trad
+		d1[0][o] = tpd1*x + px*trad
+		d1[1][o] = tpd1*y + py*trad
+		d1[2][o] = tpd1*z + pz*trad
+		if d2 == nil {
+			continue
+		}
+		tpd2 := poly * (t * d2r[pt])
+		sx, sy, sz := px*td1, py*td1, pz*td1
+		ux, uy, uz := tpd2*x+sx, tpd2*y+sy, tpd2*z+sz
+		x2, y2, z2 := k2[0]*p2[0][pt], k2[1]*p2[1][pt], k2[2]*p2[2][pt]
+		d2[0][o] = (x2*yz*trad + tpd1) + (ux+sx)*x
+		d2[1][o] = (x1*y1*z0*trad + sy*x) + ux*y
+		d2[2][o] = (x1*z1*y0*trad + sz*x) + ux*z
+		d2[3][o] = (y2*xz*trad + tpd1) + (uy+sy)*y
+		d2[4][o] = (y1*z1*x0*trad + sz*y) + uy*z
+		d2[5][o] = (z2*xy*trad + tpd1) + (uz+sz)*z
+	}
+}

@@ -899,3 +899,535 @@ znext:
 	JNZ  zrow
 	VZEROUPPER
 	RET
+
+// func cartesianRowsAVX2(v, ga, gb, gc, pa, pb, pc, la, lb, lc, rad, drad, da, db, dc *float64, t, tea, teb, tec float64, variant, np int)
+//
+// One Cartesian component over np points, four at a time, with the axes
+// ordered so that the n with a positive exponent come first (a, b, c):
+// P = p_a…(n factors), v = t·(P·R); with derivatives tPD = t·(P·R′) and
+// g_j = tPD·d_j + te_j·(Q_j·R) as fused multiply–adds for those n axes
+// (Q_j as in cartesianRowsGo), g_j = tPD·d_j for the others. The bodies
+// CRV0–CRV3 (values) and CRG0–CRG3 (with derivatives) are expanded twice:
+// with whole vectors (CRLD, CRST as plain loads and stores), then for the
+// last np mod 4 points with the masked ones.
+// Registers: AX byte offset of the points, CX points left, SI rad,
+// DI drad, R8–R10 da, db, dc, R11 v, R13 pa, DX pb, R12 pc, BX la, R14
+// scratch for the pointers read from the frame (lb, lc, ga, gb, gc);
+// Y14 t, Y13 tea, Y12 teb, Y11 tec, Y15 the tail mask. (The macros are
+// defined inside the function so that vet checks their frame offsets.)
+TEXT ·cartesianRowsAVX2(SB), NOSPLIT, $0-168
+
+#define CRLD(p, y) VMOVUPD (p)(AX*1), y
+#define CRST(y, p) VMOVUPD y, (p)(AX*1)
+
+#define CRV0 \
+	CRLD(SI, Y0) \
+	VMULPD Y14, Y0, Y0 \
+	CRST(Y0, R11)
+
+#define CRV1 \
+	CRLD(R13, Y0) \
+	CRLD(SI, Y1) \
+	VMULPD Y1, Y0, Y0 \
+	VMULPD Y14, Y0, Y0 \
+	CRST(Y0, R11)
+
+#define CRV2 \
+	CRLD(R13, Y0) \
+	CRLD(DX, Y1) \
+	VMULPD Y1, Y0, Y0 \
+	CRLD(SI, Y1) \
+	VMULPD Y1, Y0, Y0 \
+	VMULPD Y14, Y0, Y0 \
+	CRST(Y0, R11)
+
+#define CRV3 \
+	CRLD(R13, Y0) \
+	CRLD(DX, Y1) \
+	VMULPD Y1, Y0, Y0 \
+	CRLD(R12, Y1) \
+	VMULPD Y1, Y0, Y0 \
+	CRLD(SI, Y1) \
+	VMULPD Y1, Y0, Y0 \
+	VMULPD Y14, Y0, Y0 \
+	CRST(Y0, R11)
+
+// CRZERO stores g = tPD·d (tPD in Y2) for an axis of exponent 0.
+#define CRZERO(d, g) \
+	CRLD(d, Y4) \
+	VMULPD Y4, Y2, Y4 \
+	MOVQ g(FP), R14 \
+	CRST(Y4, R14)
+
+// CRAXIS stores g = tPD·d + te·(q·R) (q in a register, R in Y1, tPD in Y2)
+// for an axis of positive exponent.
+#define CRAXIS(q, te, d, g) \
+	VMULPD Y1, q, q \
+	VMULPD te, q, q \
+	CRLD(d, Y4) \
+	VFMADD231PD Y4, Y2, q \
+	MOVQ g(FP), R14 \
+	CRST(q, R14)
+
+// CRPR sets v = t·(P·R) from P (register), leaves R in Y1 and tPD = t·(P·R′) in Y2.
+#define CRPR(p) \
+	CRLD(SI, Y1) \
+	VMULPD Y1, p, Y2 \
+	VMULPD Y14, Y2, Y2 \
+	CRST(Y2, R11) \
+	CRLD(DI, Y2) \
+	VMULPD Y2, p, Y2 \
+	VMULPD Y14, Y2, Y2
+
+#define CRG0 \
+	CRLD(SI, Y0) \
+	VMULPD Y14, Y0, Y0 \
+	CRST(Y0, R11) \
+	CRLD(DI, Y2) \
+	VMULPD Y14, Y2, Y2 \
+	CRZERO(R8, ga+8) \
+	CRZERO(R9, gb+16) \
+	CRZERO(R10, gc+24)
+
+#define CRG1 \
+	CRLD(R13, Y0) \
+	CRPR(Y0) \
+	CRLD(BX, Y3) \
+	CRAXIS(Y3, Y13, R8, ga+8) \
+	CRZERO(R9, gb+16) \
+	CRZERO(R10, gc+24)
+
+#define CRG2 \
+	CRLD(R13, Y0) \
+	CRLD(DX, Y5) \
+	VMULPD Y5, Y0, Y6 \
+	CRPR(Y6) \
+	CRLD(BX, Y3) \
+	VMULPD Y5, Y3, Y3 \
+	CRAXIS(Y3, Y13, R8, ga+8) \
+	MOVQ lb+64(FP), R14 \
+	CRLD(R14, Y3) \
+	VMULPD Y3, Y0, Y3 \
+	CRAXIS(Y3, Y12, R9, gb+16) \
+	CRZERO(R10, gc+24)
+
+#define CRG3 \
+	CRLD(R13, Y0) \
+	CRLD(DX, Y5) \
+	VMULPD Y5, Y0, Y7 \
+	CRLD(R12, Y6) \
+	VMULPD Y6, Y7, Y8 \
+	CRPR(Y8) \
+	VMULPD Y6, Y5, Y3 \
+	CRLD(BX, Y4) \
+	VMULPD Y3, Y4, Y3 \
+	CRAXIS(Y3, Y13, R8, ga+8) \
+	MOVQ lb+64(FP), R14 \
+	CRLD(R14, Y3) \
+	VMULPD Y3, Y0, Y3 \
+	VMULPD Y6, Y3, Y3 \
+	CRAXIS(Y3, Y12, R9, gb+16) \
+	MOVQ lc+72(FP), R14 \
+	CRLD(R14, Y3) \
+	VMULPD Y3, Y7, Y3 \
+	CRAXIS(Y3, Y11, R10, gc+24)
+
+// CRLOOP runs body over the whole vectors of points, then jumps to tail.
+#define CRLOOP(loop, body, tail) \
+loop: \
+	CMPQ CX, $4 \
+	JLT  tail \
+	body \
+	ADDQ $32, AX \
+	SUBQ $4, CX \
+	JMP  loop
+
+	MOVQ         v+0(FP), R11
+	MOVQ         pa+32(FP), R13
+	MOVQ         pb+40(FP), DX
+	MOVQ         pc+48(FP), R12
+	MOVQ         la+56(FP), BX
+	MOVQ         rad+80(FP), SI
+	MOVQ         drad+88(FP), DI
+	MOVQ         da+96(FP), R8
+	MOVQ         db+104(FP), R9
+	MOVQ         dc+112(FP), R10
+	VBROADCASTSD t+120(FP), Y14
+	VBROADCASTSD tea+128(FP), Y13
+	VBROADCASTSD teb+136(FP), Y12
+	VBROADCASTSD tec+144(FP), Y11
+	MOVQ         np+160(FP), CX
+	XORQ         AX, AX
+	MOVQ         variant+152(FP), R14
+	CMPQ         R14, $4
+	JGE          crgrad
+	CMPQ         R14, $1
+	JLT          crv0
+	JEQ          crv1
+	CMPQ         R14, $2
+	JEQ          crv2
+	JMP          crv3
+
+crgrad:
+	CMPQ R14, $5
+	JLT  crg0
+	JEQ  crg1
+	CMPQ R14, $6
+	JEQ  crg2
+	JMP  crg3
+
+	CRLOOP(crv0, CRV0, crv0t)
+	CRLOOP(crv1, CRV1, crv1t)
+	CRLOOP(crv2, CRV2, crv2t)
+	CRLOOP(crv3, CRV3, crv3t)
+	CRLOOP(crg0, CRG0, crg0t)
+	CRLOOP(crg1, CRG1, crg1t)
+	CRLOOP(crg2, CRG2, crg2t)
+	CRLOOP(crg3, CRG3, crg3t)
+
+// The last np mod 4 points, with masked loads and stores.
+#undef CRLD
+#undef CRST
+#define CRLD(p, y) VMASKMOVPD (p)(AX*1), Y15, y
+#define CRST(y, p) VMASKMOVPD y, Y15, (p)(AX*1)
+
+// CRTAIL runs body once on the CX < 4 points left, if any.
+#define CRTAIL(tail, body) \
+tail: \
+	TESTQ   CX, CX \
+	JZ      crdone \
+	SHLQ    $5, CX \
+	LEAQ    masks<>(SB), R14 \
+	VMOVDQU (R14)(CX*1), Y15 \
+	body \
+	JMP     crdone
+
+	CRTAIL(crv0t, CRV0)
+	CRTAIL(crv1t, CRV1)
+	CRTAIL(crv2t, CRV2)
+	CRTAIL(crv3t, CRV3)
+	CRTAIL(crg0t, CRG0)
+	CRTAIL(crg1t, CRG1)
+	CRTAIL(crg2t, CRG2)
+	CRTAIL(crg3t, CRG3)
+
+crdone:
+	VZEROUPPER
+	RET
+
+// func cartesianDerivsAVX2(out *[10]*float64, in *[15]*float64, k *[7]float64, nc, ld, np, variant int)
+//
+// The nc components of a shell over np points, four at a time, all the
+// components of four points before the next four, with the arithmetic of
+// cartesianComponentGo (every product feeding a sum fused into it): CDG1
+// the value and first derivatives, CDG2 the second derivatives, CDS1 and
+// CDS2 the same for an s function. The four lanes of a result go to the
+// four points' elements of a point-major block (stride ld), component c in
+// column c. The bodies are expanded twice: for the whole vectors, then for
+// the last np mod 4 points with masked loads and the results stored in the
+// local buffer (ten rows of four), from which the valid lanes are copied.
+// Registers: AX byte offset of the points in the inputs, DI that of the
+// outputs (p·ld·8), R11 that plus 8c for component c, BX in[c], R10 k[c],
+// DX out, R8 = 8·ld, R9 = 24·ld, R13 = 32·ld, R14 components left, CX
+// points left, SI scratch, R12 the local buffer; Y14 t of the component,
+// Y15 the tail mask, Y13 scratch of the stores.
+TEXT ·cartesianDerivsAVX2(SB), NOSPLIT, $320-56
+
+#define CDLD(i, y) \
+	MOVQ    i*8(BX), SI \
+	VMOVUPD (SI)(AX*1), y
+
+#define CDST(y, x, i) \
+	MOVQ         i*8(DX), SI \
+	ADDQ         R11, SI \
+	VMOVSD       x, (SI) \
+	VMOVHPD      x, (SI)(R8*1) \
+	VEXTRACTF128 $1, y, X13 \
+	VMOVSD       X13, (SI)(R8*2) \
+	VMOVHPD      X13, (SI)(R9*1)
+
+#define CDK(i, y) VBROADCASTSD i*8(R10), y
+
+// CDG1 leaves yz, xz, xy in Y3–Y5, P in Y6, T = t·R in Y7, T1 = t·R′ in
+// Y8, P·T1 in Y9 and p_x, p_y, p_z in Y10–Y12 for CDG2.
+#define CDG1 \
+	CDLD(0, Y0) \
+	CDLD(1, Y1) \
+	CDLD(2, Y2) \
+	VMULPD      Y2, Y1, Y3 \
+	VMULPD      Y2, Y0, Y4 \
+	VMULPD      Y1, Y0, Y5 \
+	VMULPD      Y3, Y0, Y6 \
+	CDLD(9, Y7) \
+	VMULPD      Y14, Y7, Y7 \
+	VMULPD      Y7, Y6, Y0 \
+	CDST(Y0, X0, 0) \
+	CDLD(10, Y8) \
+	VMULPD      Y14, Y8, Y8 \
+	VMULPD      Y8, Y6, Y9 \
+	CDLD(3, Y0) \
+	CDK(0, Y1) \
+	VMULPD      Y1, Y0, Y0 \
+	VMULPD      Y3, Y0, Y10 \
+	CDLD(4, Y0) \
+	CDK(1, Y1) \
+	VMULPD      Y1, Y0, Y0 \
+	VMULPD      Y4, Y0, Y11 \
+	CDLD(5, Y0) \
+	CDK(2, Y1) \
+	VMULPD      Y1, Y0, Y0 \
+	VMULPD      Y5, Y0, Y12 \
+	VMULPD      Y7, Y10, Y0 \
+	CDLD(12, Y1) \
+	VFMADD231PD Y1, Y9, Y0 \
+	CDST(Y0, X0, 1) \
+	VMULPD      Y7, Y11, Y0 \
+	CDLD(13, Y1) \
+	VFMADD231PD Y1, Y9, Y0 \
+	CDST(Y0, X0, 2) \
+	VMULPD      Y7, Y12, Y0 \
+	CDLD(14, Y1) \
+	VFMADD231PD Y1, Y9, Y0 \
+	CDST(Y0, X0, 3)
+
+// CDDIAG stores ∂_j∂_jφ = ((x_2·O)·T + P·T1) + (u + s)·x_j from the row of
+// the lower power li, the factor ki, O, u, s and x_j (registers).
+#define CDDIAG(li, ki, o, u, s, r, i) \
+	CDLD(li, Y2) \
+	CDK(ki, Y8) \
+	VMULPD      Y8, Y2, Y2 \
+	VMULPD      o, Y2, Y2 \
+	VFMADD213PD Y9, Y7, Y2 \
+	VADDPD      s, u, Y8 \
+	VFMADD231PD r, Y8, Y2 \
+	CDST(Y2, X2, i)
+
+// CDG2 turns p_j into s_j = p_j·T1 (Y10–Y12), P into P·T2 (Y6), and
+// stores the six second derivatives; u_j is in Y1, x_j in Y0.
+#define CDG2 \
+	CDLD(11, Y0) \
+	VMULPD      Y14, Y0, Y0 \
+	VMULPD      Y0, Y6, Y6 \
+	VMULPD      Y8, Y10, Y10 \
+	VMULPD      Y8, Y11, Y11 \
+	VMULPD      Y8, Y12, Y12 \
+	CDLD(12, Y0) \
+	VMOVAPD     Y10, Y1 \
+	VFMADD231PD Y0, Y6, Y1 \
+	CDDIAG(6, 3, Y3, Y1, Y10, Y0, 4) \
+	CDLD(3, Y2) \
+	CDK(0, Y8) \
+	VMULPD      Y8, Y2, Y2 \
+	CDLD(4, Y8) \
+	CDK(1, Y13) \
+	VMULPD      Y13, Y8, Y8 \
+	VMULPD      Y8, Y2, Y8 \
+	CDLD(2, Y13) \
+	VMULPD      Y13, Y8, Y8 \
+	VMULPD      Y7, Y8, Y8 \
+	VFMADD231PD Y0, Y11, Y8 \
+	CDLD(13, Y13) \
+	VFMADD231PD Y13, Y1, Y8 \
+	CDST(Y8, X8, 5) \
+	CDLD(5, Y8) \
+	CDK(2, Y13) \
+	VMULPD      Y13, Y8, Y8 \
+	VMULPD      Y8, Y2, Y2 \
+	CDLD(1, Y8) \
+	VMULPD      Y8, Y2, Y2 \
+	VMULPD      Y7, Y2, Y2 \
+	VFMADD231PD Y0, Y12, Y2 \
+	CDLD(14, Y8) \
+	VFMADD231PD Y8, Y1, Y2 \
+	CDST(Y2, X2, 6) \
+	CDLD(13, Y0) \
+	VMOVAPD     Y11, Y1 \
+	VFMADD231PD Y0, Y6, Y1 \
+	CDDIAG(7, 4, Y4, Y1, Y11, Y0, 7) \
+	CDLD(4, Y2) \
+	CDK(1, Y8) \
+	VMULPD      Y8, Y2, Y2 \
+	CDLD(5, Y8) \
+	CDK(2, Y13) \
+	VMULPD      Y13, Y8, Y8 \
+	VMULPD      Y8, Y2, Y2 \
+	CDLD(0, Y8) \
+	VMULPD      Y8, Y2, Y2 \
+	VMULPD      Y7, Y2, Y2 \
+	VFMADD231PD Y0, Y12, Y2 \
+	CDLD(14, Y0) \
+	VFMADD231PD Y0, Y1, Y2 \
+	CDST(Y2, X2, 8) \
+	VMOVAPD     Y12, Y1 \
+	VFMADD231PD Y0, Y6, Y1 \
+	CDDIAG(8, 5, Y5, Y1, Y12, Y0, 9)
+
+// CDS1 leaves T1 = t·R′ in Y8 for CDS2.
+#define CDS1 \
+	CDLD(9, Y0) \
+	VMULPD Y14, Y0, Y0 \
+	CDST(Y0, X0, 0) \
+	CDLD(10, Y8) \
+	VMULPD Y14, Y8, Y8 \
+	CDLD(12, Y0) \
+	VMULPD Y0, Y8, Y0 \
+	CDST(Y0, X0, 1) \
+	CDLD(13, Y0) \
+	VMULPD Y0, Y8, Y0 \
+	CDST(Y0, X0, 2) \
+	CDLD(14, Y0) \
+	VMULPD Y0, Y8, Y0 \
+	CDST(Y0, X0, 3)
+
+// CDS2: u_j = (t·R″)·x_j in Y1, x, y, z in Y0, Y3, Y4.
+#define CDS2 \
+	CDLD(11, Y6) \
+	VMULPD      Y14, Y6, Y6 \
+	CDLD(12, Y0) \
+	CDLD(13, Y3) \
+	CDLD(14, Y4) \
+	VMULPD      Y0, Y6, Y1 \
+	VMOVAPD     Y8, Y2 \
+	VFMADD231PD Y0, Y1, Y2 \
+	CDST(Y2, X2, 4) \
+	VMULPD      Y3, Y1, Y2 \
+	CDST(Y2, X2, 5) \
+	VMULPD      Y4, Y1, Y2 \
+	CDST(Y2, X2, 6) \
+	VMULPD      Y3, Y6, Y1 \
+	VMOVAPD     Y8, Y2 \
+	VFMADD231PD Y3, Y1, Y2 \
+	CDST(Y2, X2, 7) \
+	VMULPD      Y4, Y1, Y2 \
+	CDST(Y2, X2, 8) \
+	VMULPD      Y4, Y6, Y1 \
+	VMOVAPD     Y8, Y2 \
+	VFMADD231PD Y4, Y1, Y2 \
+	CDST(Y2, X2, 9)
+
+// CDCOMPS runs body for the components of the four points at AX (inputs)
+// and DI (outputs).
+#define CDCOMPS(comp, body) \
+	MOVQ         DI, R11 \
+	MOVQ         in+8(FP), BX \
+	MOVQ         k+16(FP), R10 \
+	MOVQ         nc+24(FP), R14 \
+comp: \
+	VBROADCASTSD 48(R10), Y14 \
+	body \
+	ADDQ         $120, BX \
+	ADDQ         $56, R10 \
+	ADDQ         $8, R11 \
+	DECQ         R14 \
+	JNZ          comp
+
+// CDLOOP runs body over the whole vectors of points, then jumps to tail.
+#define CDLOOP(loop, comp, body, tail) \
+loop: \
+	CMPQ CX, $4 \
+	JLT  tail \
+	CDCOMPS(comp, body) \
+	ADDQ $32, AX \
+	ADDQ R13, DI \
+	SUBQ $4, CX \
+	JMP  loop
+
+	MOVQ   out+0(FP), DX
+	MOVQ   ld+32(FP), R8
+	SHLQ   $3, R8
+	LEAQ   (R8)(R8*2), R9
+	MOVQ   R8, R13
+	SHLQ   $2, R13
+	MOVQ   np+40(FP), CX
+	LEAQ   buf-320(SP), R12
+	XORQ   AX, AX
+	XORQ   DI, DI
+	MOVQ   variant+48(FP), R11
+	CMPQ   R11, $1
+	JLT    cdg1
+	JEQ    cdg2
+	CMPQ   R11, $3
+	JLT    cds1
+	JMP    cds2
+
+#define CDG12 CDG1 \
+	CDG2
+#define CDS12 CDS1 \
+	CDS2
+
+	CDLOOP(cdg1, cdg1c, CDG1, cdg1t)
+	CDLOOP(cdg2, cdg2c, CDG12, cdg2t)
+	CDLOOP(cds1, cds1c, CDS1, cds1t)
+	CDLOOP(cds2, cds2c, CDS12, cds2t)
+
+// The last np mod 4 points: masked loads, results to the local buffer,
+// whose first CX lanes (CX now in bytes) CDCOPY4 and CDCOPY10 copy out.
+#undef CDLD
+#undef CDST
+#define CDLD(i, y) \
+	MOVQ       i*8(BX), SI \
+	VMASKMOVPD (SI)(AX*1), Y15, y
+#define CDST(y, x, i) VMOVUPD y, i*32(R12)
+
+// CDCOPY copies row i of the buffer, lane R13/8, to its output; R9 is
+// the lane's offset in the output.
+#define CDCOPY(i) \
+	MOVQ   i*8(DX), SI \
+	ADDQ   R11, SI \
+	VMOVSD i*32(R12)(R13*1), X0 \
+	VMOVSD X0, (SI)(R9*1)
+
+#define CDCOPY4 CDCOPY(0) \
+	CDCOPY(1) \
+	CDCOPY(2) \
+	CDCOPY(3)
+
+#define CDCOPY10 CDCOPY4 \
+	CDCOPY(4) \
+	CDCOPY(5) \
+	CDCOPY(6) \
+	CDCOPY(7) \
+	CDCOPY(8) \
+	CDCOPY(9)
+
+// CDTAIL runs body and then copy for each component of the CX < 4 points
+// left, if any.
+#define CDTAIL(tail, comp, lane, body, copy) \
+tail: \
+	TESTQ        CX, CX \
+	JZ           cddone \
+	MOVQ         CX, SI \
+	SHLQ         $5, SI \
+	LEAQ         masks<>(SB), R11 \
+	VMOVDQU      (R11)(SI*1), Y15 \
+	SHLQ         $3, CX \
+	MOVQ         DI, R11 \
+	MOVQ         in+8(FP), BX \
+	MOVQ         k+16(FP), R10 \
+	MOVQ         nc+24(FP), R14 \
+comp: \
+	VBROADCASTSD 48(R10), Y14 \
+	body \
+	XORQ         R9, R9 \
+	XORQ         R13, R13 \
+lane: \
+	copy \
+	ADDQ         R8, R9 \
+	ADDQ         $8, R13 \
+	CMPQ         R13, CX \
+	JLT          lane \
+	ADDQ         $120, BX \
+	ADDQ         $56, R10 \
+	ADDQ         $8, R11 \
+	DECQ         R14 \
+	JNZ          comp \
+	JMP          cddone
+
+	CDTAIL(cdg1t, cdg1tc, cdg1tl, CDG1, CDCOPY4)
+	CDTAIL(cdg2t, cdg2tc, cdg2tl, CDG12, CDCOPY10)
+	CDTAIL(cds1t, cds1tc, cds1tl, CDS1, CDCOPY4)
+	CDTAIL(cds2t, cds2tc, cds2tl, CDS12, CDCOPY10)
+
+cddone:
+	VZEROUPPER
+	RET

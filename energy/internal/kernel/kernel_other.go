@@ -37,3 +37,22 @@ func ExpNonPositive(x, out []float64) {
 func ZRows(phi, gx, gy, gz, half, bx, by, bz []float64, m, np int, z []float64) {
 	zRowsGo(phi, gx, gy, gz, half, bx, by, bz, m, np, z)
 }
+
+// CartesianRows sets, at the np points of a batch, the value row v of one
+// Cartesian component φ = t·x^{e_x} y^{e_y} z^{e_z}·R of a shell and, when g
+// is not nil, its three derivative rows ∂_jφ, from the powers pw[a][k] =
+// x_a^k of the coordinates relative to the centre, R = rad and R′ = drad:
+// here always cartesianRowsGo (see CartesianRows in kernel_amd64.go).
+func CartesianRows(e [3]int, t float64, pw [3][][]float64, rad, drad []float64, np int, v []float64, g *[3][]float64) {
+	cartesianRowsGo(e, t, pw, rad, drad, np, v, g)
+}
+
+// CartesianDerivatives sets, at the np points of a batch, the values,
+// first and (when d2 is not nil) second derivatives of the Cartesian
+// components φ_c = t_c·x^{e_x} y^{e_y} z^{e_z}·R, e = comps[c], t_c = ts[c],
+// of one shell, point p of component c at element p·ld + c of each: here
+// always cartesianDerivativesGo (see CartesianDerivatives in
+// kernel_amd64.go).
+func CartesianDerivatives(comps [][3]int, ts []float64, pw [3][][]float64, rad, d1r, d2r []float64, np int, phi []float64, d1 *[3][]float64, d2 *[6][]float64, ld int) {
+	cartesianDerivativesGo(comps, ts, pw, rad, d1r, d2r, np, phi, d1, d2, ld)
+}

@@ -433,3 +433,417 @@ func TestDotProductsGonum(t *testing.T) {
 		}
 	}
 }
+
+// cartesianExponents are the exponents of the Cartesian components of
+// angular momentum 0…l.
+func cartesianExponents(l int) [][3]int {
+	var es [][3]int
+	for n := 0; n <= l; n++ {
+		for a := n; a >= 0; a-- {
+			for b := n - a; b >= 0; b-- {
+				es = append(es, [3]int{a, b, n - a - b})
+			}
+		}
+	}
+	return es
+}
+
+// powerTable returns pw[a][k] = x_a^k (k ≤ kmax) over np random points in
+// [−2, 2)³, by repeated multiplication as the grid code forms them.
+func powerTable(r *rand.Rand, np, kmax int) [3][][]float64 {
+	var pw [3][][]float64
+	for a := range pw {
+		pw[a] = make([][]float64, kmax+1)
+		pw[a][0] = make([]float64, np)
+		for p := range pw[a][0] {
+			pw[a][0][p] = 1
+		}
+		pw[a][1] = randomSlice(r, np)
+		for p := range pw[a][1] {
+			pw[a][1][p] *= 2
+		}
+		for k := 2; k <= kmax; k++ {
+			pw[a][k] = make([]float64, np)
+			for p := range pw[a][k] {
+				pw[a][k][p] = pw[a][k-1][p] * pw[a][1][p]
+			}
+		}
+	}
+	return pw
+}
+
+// naiveCartesian is one Cartesian component written out at point p: the
+// value P·R, the first derivatives and, with d2r, the second derivatives
+// (packed xx, xy, xz, yy, yz, zz) before the factor t, each with the sum of
+// the absolute values of its terms.
+func naiveCartesian(e [3]int, x [3]float64, rad, d1r, d2r float64) (v float64, d1 [3]float64, d2 [6]float64, s1 [3]float64, s2 [6]float64) {
+	pow := func(a, k int) float64 {
+		if k < 0 {
+			return 0
+		}
+		return math.Pow(x[a], float64(k))
+	}
+	// mono(da) is Π_a ∂^{da_a} x_a^{e_a}.
+	mono := func(da [3]int) float64 {
+		m := 1.0
+		for a := 0; a < 3; a++ {
+			c := 1.0
+			for i := 0; i < da[a]; i++ {
+				c *= float64(e[a] - i)
+			}
+			m *= c * pow(a, e[a]-da[a])
+		}
+		return m
+	}
+	poly := mono([3]int{})
+	v = poly * rad
+	for j := 0; j < 3; j++ {
+		var dj [3]int
+		dj[j] = 1
+		a, b := mono(dj)*rad, poly*d1r*x[j]
+		d1[j], s1[j] = a+b, math.Abs(a)+math.Abs(b)
+	}
+	i := 0
+	for j := 0; j < 3; j++ {
+		for k := j; k < 3; k++ {
+			var djk, dj, dk [3]int
+			djk[j]++
+			djk[k]++
+			dj[j], dk[k] = 1, 1
+			terms := []float64{mono(djk) * rad, mono(dj) * d1r * x[k], mono(dk) * d1r * x[j], poly * d2r * x[j] * x[k]}
+			if j == k {
+				terms = append(terms, poly*d1r)
+			}
+			for _, t := range terms {
+				d2[i] += t
+				s2[i] += math.Abs(t)
+			}
+			i++
+		}
+	}
+	return v, d1, d2, s1, s2
+}
+
+// cartesianSizes are the point counts the Cartesian kernel tests run:
+// every tail of the four-point vectors and some batch sizes.
+var cartesianSizes = []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 11, 13, 37, 256}
+
+// TestCartesianRowsKernels compares CartesianRows (the AVX2+FMA kernel
+// where the processor has it) and cartesianRowsGo with the functions
+// written out, for every component up to l = 4, with and without
+// derivatives and every tail of the vectors; checks that the two kernels
+// agree within a few units in the last place of the size of the terms
+// (bit for bit for the values, which fuse nothing), that nothing past np is
+// written and that the unused power rows are not read (they are nil).
+func TestCartesianRowsKernels(t *testing.T) {
+	r := rand.New(rand.NewPCG(23, 24))
+	const sentinel = -777.0
+	type rowsFunc func(e [3]int, t float64, pw [3][][]float64, rad, drad []float64, np int, v []float64, g *[3][]float64)
+	kernels := []struct {
+		name string
+		f    rowsFunc
+	}{{"dispatch", CartesianRows}, {"go", cartesianRowsGo}}
+	for _, np := range cartesianSizes {
+		full := powerTable(r, np, 4)
+		rad, drad := randomSlice(r, np), randomSlice(r, np)
+		for _, e := range cartesianExponents(4) {
+			tc := 0.5 + r.Float64()
+			for _, grad := range []bool{false, true} {
+				// Only the rows the kernel may read: x_a^{e_a} and
+				// x_a^{e_a−1} for e_a > 0 and, for the derivatives, x_a.
+				var pw [3][][]float64
+				for a := range pw {
+					pw[a] = make([][]float64, max(e[a], 1)+1)
+					if grad {
+						pw[a][1] = full[a][1]
+					}
+					if e[a] > 0 {
+						pw[a][e[a]], pw[a][e[a]-1] = full[a][e[a]], full[a][e[a]-1]
+					}
+				}
+				var outs [2][4][]float64
+				for ki, kn := range kernels {
+					for j := range outs[ki] {
+						outs[ki][j] = make([]float64, np+2)
+						for i := range outs[ki][j] {
+							outs[ki][j][i] = sentinel
+						}
+					}
+					var g *[3][]float64
+					if grad {
+						g = &[3][]float64{outs[ki][1], outs[ki][2], outs[ki][3]}
+					}
+					kn.f(e, tc, pw, rad, drad, np, outs[ki][0], g)
+					for j, o := range outs[ki] {
+						if !grad && j > 0 {
+							if o[0] != sentinel {
+								t.Fatalf("%s %v np=%d: derivative row %d written without g", kn.name, e, np, j)
+							}
+							continue
+						}
+						if o[np] != sentinel || o[np+1] != sentinel {
+							t.Fatalf("%s %v np=%d grad=%v: row %d written past np", kn.name, e, np, grad, j)
+						}
+					}
+					for p := 0; p < np; p++ {
+						x := [3]float64{full[0][1][p], full[1][1][p], full[2][1][p]}
+						v, d1, _, s1, _ := naiveCartesian(e, x, rad[p], drad[p], 0)
+						want, scale := [4]float64{tc * v}, [4]float64{math.Abs(tc * v)}
+						for j := 0; j < 3; j++ {
+							want[1+j], scale[1+j] = tc*d1[j], tc*s1[j]
+						}
+						for j := 0; j < 4 && (j == 0 || grad); j++ {
+							if got := outs[ki][j][p]; math.Abs(got-want[j]) > 1e-14*scale[j] {
+								t.Fatalf("%s %v np=%d: row %d point %d = %.17g, want %.17g (scale %g)", kn.name, e, np, j, p, got, want[j], scale[j])
+							}
+						}
+					}
+				}
+				for p := 0; p < np; p++ {
+					if outs[0][0][p] != outs[1][0][p] {
+						t.Fatalf("%v np=%d: values differ at %d: %.17g vs %.17g", e, np, p, outs[0][0][p], outs[1][0][p])
+					}
+					if !grad {
+						continue
+					}
+					x := [3]float64{full[0][1][p], full[1][1][p], full[2][1][p]}
+					_, _, _, s1, _ := naiveCartesian(e, x, rad[p], drad[p], 0)
+					for j := 0; j < 3; j++ {
+						a, b := outs[0][1+j][p], outs[1][1+j][p]
+						if math.Abs(a-b) > 8*ulpOf(tc*s1[j]) {
+							t.Fatalf("%v np=%d: derivative %d at %d: %.17g vs %.17g (%.1f ulp of %g)", e, np, j, p, a, b, math.Abs(a-b)/ulpOf(tc*s1[j]), tc*s1[j])
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// cartesianShells are the component lists the shell kernel tests run:
+// the Cartesian shells of l = 0…4 (the last more than one group of ten)
+// and an s and a p shell together.
+func cartesianShells() [][][3]int {
+	var shells [][][3]int
+	for l := 0; l <= 4; l++ {
+		all := cartesianExponents(l)
+		shells = append(shells, all[len(cartesianExponents(l-1)):])
+	}
+	return append(shells, cartesianExponents(1))
+}
+
+// TestCartesianDerivativesKernels compares CartesianDerivatives (the
+// AVX2+FMA kernel where the processor has it) and cartesianDerivativesGo
+// with the functions written out, for the shells of cartesianShells, with
+// and without second derivatives, every tail of the vectors and blocks as
+// wide as the shell or wider (the other elements must stay as they were).
+func TestCartesianDerivativesKernels(t *testing.T) {
+	r := rand.New(rand.NewPCG(25, 26))
+	const sentinel = -555.0
+	type derivsFunc func(comps [][3]int, ts []float64, pw [3][][]float64, rad, d1r, d2r []float64, np int, phi []float64, d1 *[3][]float64, d2 *[6][]float64, ld int)
+	kernels := []struct {
+		name string
+		f    derivsFunc
+	}{{"dispatch", CartesianDerivatives}, {"go", cartesianDerivativesGo}}
+	for _, np := range cartesianSizes {
+		pw := powerTable(r, np, 4)
+		rad, d1r, d2r := randomSlice(r, np), randomSlice(r, np), randomSlice(r, np)
+		for _, comps := range cartesianShells() {
+			nc := len(comps)
+			ts := make([]float64, nc)
+			for c := range ts {
+				ts[c] = 0.5 + r.Float64()
+			}
+			for _, second := range []bool{false, true} {
+				for _, ld := range []int{nc, nc + 3} {
+					var outs [2][10][]float64
+					for ki, kn := range kernels {
+						for j := range outs[ki] {
+							outs[ki][j] = make([]float64, np*ld+1)
+							for i := range outs[ki][j] {
+								outs[ki][j][i] = sentinel
+							}
+						}
+						o := outs[ki]
+						d1 := &[3][]float64{o[1], o[2], o[3]}
+						var d2 *[6][]float64
+						if second {
+							d2 = &[6][]float64{o[4], o[5], o[6], o[7], o[8], o[9]}
+						}
+						kn.f(comps, ts, pw, rad, d1r, d2r, np, o[0], d1, d2, ld)
+						for j, row := range o {
+							for i, x := range row {
+								if (i%ld >= nc || i >= np*ld || (j >= 4 && !second)) && x != sentinel {
+									t.Fatalf("%s %v np=%d ld=%d: row %d element %d written", kn.name, comps, np, ld, j, i)
+								}
+							}
+						}
+						for c, e := range comps {
+							tc := ts[c]
+							for p := 0; p < np; p++ {
+								x := [3]float64{pw[0][1][p], pw[1][1][p], pw[2][1][p]}
+								v, dv1, dv2, s1, s2 := naiveCartesian(e, x, rad[p], d1r[p], d2r[p])
+								want := append([]float64{v}, dv1[:]...)
+								scale := append([]float64{math.Abs(v)}, s1[:]...)
+								want, scale = append(want, dv2[:]...), append(scale, s2[:]...)
+								i := p*ld + c
+								for j := range want {
+									if j >= 4 && !second {
+										break
+									}
+									if got := o[j][i]; math.Abs(got-tc*want[j]) > 1e-14*tc*scale[j] {
+										t.Fatalf("%s %v np=%d ld=%d: row %d point %d = %.17g, want %.17g (scale %g)", kn.name, e, np, ld, j, p, got, tc*want[j], tc*scale[j])
+									}
+									if ki == 0 {
+										continue
+									}
+									a, b := outs[0][j][i], o[j][i]
+									if j == 0 && a != b {
+										t.Fatalf("%v np=%d: values differ at %d: %.17g vs %.17g", e, np, p, a, b)
+									}
+									if math.Abs(a-b) > 16*ulpOf(tc*scale[j]) {
+										t.Fatalf("%v np=%d: row %d at %d: %.17g vs %.17g (%.1f ulp of %g)", e, np, j, p, a, b, math.Abs(a-b)/ulpOf(tc*scale[j]), tc*scale[j])
+									}
+								}
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestCartesianPointwise checks that every point's results are the same,
+// bit for bit, whether computed in a batch of 37 (whole vectors) or alone
+// (the masked tail), and for the shell kernel whether with the whole shell
+// or one component: each point depends only on its own inputs.
+func TestCartesianPointwise(t *testing.T) {
+	r := rand.New(rand.NewPCG(27, 28))
+	const np = 37
+	pw := powerTable(r, np, 3)
+	rad, d1r, d2r := randomSlice(r, np), randomSlice(r, np), randomSlice(r, np)
+	at := func(p int) ([3][][]float64, []float64, []float64, []float64) {
+		var q [3][][]float64
+		for a := range q {
+			q[a] = make([][]float64, len(pw[a]))
+			for k := range q[a] {
+				q[a][k] = pw[a][k][p : p+1]
+			}
+		}
+		return q, rad[p : p+1], d1r[p : p+1], d2r[p : p+1]
+	}
+	for _, comps := range cartesianShells()[:4] {
+		nc := len(comps)
+		ts := make([]float64, nc)
+		for c := range ts {
+			ts[c] = 1 + 0.1*float64(c)
+		}
+		var ds [10][]float64
+		for j := range ds {
+			ds[j] = make([]float64, np*nc)
+		}
+		CartesianDerivatives(comps, ts, pw, rad, d1r, d2r, np, ds[0], &[3][]float64{ds[1], ds[2], ds[3]},
+			&[6][]float64{ds[4], ds[5], ds[6], ds[7], ds[8], ds[9]}, nc)
+		for c, e := range comps {
+			var rows [4][]float64
+			for j := range rows {
+				rows[j] = make([]float64, np)
+			}
+			CartesianRows(e, ts[c], pw, rad, d1r, np, rows[0], &[3][]float64{rows[1], rows[2], rows[3]})
+			for p := 0; p < np; p++ {
+				q, qr, q1, q2 := at(p)
+				var one [10][]float64
+				for j := range one {
+					one[j] = make([]float64, 1)
+				}
+				CartesianRows(e, ts[c], q, qr, q1, 1, one[0], &[3][]float64{one[1], one[2], one[3]})
+				for j := 0; j < 4; j++ {
+					if one[j][0] != rows[j][p] {
+						t.Fatalf("rows %v: row %d point %d = %.17g in the batch, %.17g alone", e, j, p, rows[j][p], one[j][0])
+					}
+				}
+				CartesianDerivatives([][3]int{e}, ts[c:c+1], q, qr, q1, q2, 1, one[0], &[3][]float64{one[1], one[2], one[3]},
+					&[6][]float64{one[4], one[5], one[6], one[7], one[8], one[9]}, 1)
+				for j := range one {
+					if got := ds[j][p*nc+c]; one[j][0] != got {
+						t.Fatalf("derivatives %v: row %d point %d = %.17g in the batch, %.17g alone", e, j, p, got, one[j][0])
+					}
+				}
+			}
+		}
+	}
+}
+
+// ulpOf is the spacing of the floating-point numbers at |x| (the smallest
+// subnormal for 0).
+func ulpOf(x float64) float64 {
+	x = math.Abs(x)
+	return math.Nextafter(x, math.Inf(1)) - x
+}
+
+// BenchmarkCartesianRows times CartesianRows with derivatives over a batch
+// of 256 points for an s, a p and the two kinds of Cartesian d components
+// (xx and xy), and the values alone for a d component, for the
+// dispatching kernel and the portable one.
+func BenchmarkCartesianRows(b *testing.B) {
+	r := rand.New(rand.NewPCG(29, 30))
+	const np = 256
+	pw := powerTable(r, np, 3)
+	rad, drad := randomSlice(r, np), randomSlice(r, np)
+	v := make([]float64, np)
+	g := [3][]float64{make([]float64, np), make([]float64, np), make([]float64, np)}
+	for _, c := range []struct {
+		name string
+		e    [3]int
+		grad bool
+	}{{"s", [3]int{}, true}, {"px", [3]int{1, 0, 0}, true}, {"dxx", [3]int{2, 0, 0}, true}, {"dxy", [3]int{1, 1, 0}, true}, {"dxyValues", [3]int{1, 1, 0}, false}} {
+		gp := &g
+		if !c.grad {
+			gp = nil
+		}
+		for _, kn := range []struct {
+			name string
+			f    func(e [3]int, t float64, pw [3][][]float64, rad, drad []float64, np int, v []float64, g *[3][]float64)
+		}{{"dispatch", CartesianRows}, {"go", cartesianRowsGo}} {
+			b.Run(c.name+"/"+kn.name, func(b *testing.B) {
+				for b.Loop() {
+					kn.f(c.e, 1.1, pw, rad, drad, np, v, gp)
+				}
+				b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/np, "ns/point")
+			})
+		}
+	}
+}
+
+// BenchmarkCartesianDerivatives times CartesianDerivatives with second
+// derivatives over a batch of 256 points written into point-major blocks
+// 60 functions wide, for an s, a p and a Cartesian d shell, for the
+// dispatching kernel and the portable one.
+func BenchmarkCartesianDerivatives(b *testing.B) {
+	r := rand.New(rand.NewPCG(31, 32))
+	const np, ld = 256, 60
+	pw := powerTable(r, np, 3)
+	rad, d1r, d2r := randomSlice(r, np), randomSlice(r, np), randomSlice(r, np)
+	var o [10][]float64
+	for j := range o {
+		o[j] = make([]float64, np*ld)
+	}
+	d1 := &[3][]float64{o[1], o[2], o[3]}
+	d2 := &[6][]float64{o[4], o[5], o[6], o[7], o[8], o[9]}
+	ts := []float64{1.1, 1.2, 1.3, 1.4, 1.5, 1.6}
+	for _, l := range []int{0, 1, 2} {
+		comps := cartesianShells()[l]
+		for _, kn := range []struct {
+			name string
+			f    func(comps [][3]int, ts []float64, pw [3][][]float64, rad, d1r, d2r []float64, np int, phi []float64, d1 *[3][]float64, d2 *[6][]float64, ld int)
+		}{{"dispatch", CartesianDerivatives}, {"go", cartesianDerivativesGo}} {
+			b.Run(fmt.Sprintf("%c/%s", "spd"[l], kn.name), func(b *testing.B) {
+				for b.Loop() {
+					kn.f(comps, ts, pw, rad, d1r, d2r, np, o[0], d1, d2, ld)
+				}
+				b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/np/float64(len(comps)), "ns/point/function")
+			})
+		}
+	}
+}
