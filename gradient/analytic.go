@@ -44,8 +44,11 @@ var ErrNotConverged = errors.New("the analytic gradient needs a converged SCF")
 // Hartree–Fock); its grid must be the one of this geometry, and its stored
 // function values are freed first (dft.Potential.ReleaseCache: the
 // gradient does not use them, and a density fit needs the room; the
-// XCCacheBytes budget counts on it). threads ≤ 0 means all cores; the
-// result does not depend on threads.
+// XCCacheBytes budget counts on it). The density fit of a fitted SCF
+// (res.Fit) is used up by its gradient, which forms its two-particle
+// density in the fit's memory (fit.GradientReleasing): res.Fit is nil
+// afterwards. threads ≤ 0 means all cores; the result does not depend on
+// threads.
 //
 // The formula is that of a variational SCF energy (J. A. Pople,
 // R. Krishnan, H. B. Schlegel, J. S. Binkley, Int. J. Quantum Chem. Symp.
@@ -117,7 +120,10 @@ func Analytic(ctx context.Context, mol *molecule.Molecule, shells []basis.Shell,
 				return nil, fmt.Errorf("gradient: density fitting: %w", err)
 			}
 		}
-		g, err := f.Gradient(ctx, dens, ax, nat)
+		// The SCF's fit is not needed after its gradient: G takes B's
+		// memory, and the result no longer holds the fit.
+		g, err := f.GradientReleasing(ctx, dens, ax, nat)
+		res.Fit = nil
 		if err != nil {
 			return nil, fmt.Errorf("gradient: density-fitted two-electron part: %w", err)
 		}

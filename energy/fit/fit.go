@@ -11,6 +11,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"poise/energy/integral"
+	"poise/energy/internal/hugepage"
 	"poise/energy/internal/kernel"
 )
 
@@ -81,8 +82,9 @@ func New(ctx context.Context, orb, aux *integral.Basis, threads int) (*Fit, erro
 
 // HeldBytes is the memory a fit of nbf orbital and naux auxiliary
 // functions holds from its construction to its gradient: B and the
-// metric's factor. Its gradient needs as much again (G, the same size as
-// B, and the metric's inverse).
+// metric's factor. Its Gradient needs as much again (G, the same size as
+// B, and the metric's inverse); GradientReleasing forms G in B's place and
+// needs only the metric's inverse more.
 func HeldBytes(nbf, naux int) int64 {
 	npair := int64(nbf) * int64(nbf+1) / 2
 	return 8 * (int64(naux)*npair + int64(naux)*int64(naux))
@@ -106,6 +108,9 @@ func (f *Fit) threeCentre(ctx context.Context) ([]float64, error) {
 	// chunk fills a pair-major buffer (contiguous writes) and transposes
 	// it into the auxiliary-major result.
 	out := make([]float64, f.naux*f.npair)
+	// Written once, in shell order: huge pages make the first touch of
+	// these hundreds of MiB (a large molecule's fit) cheaper.
+	hugepage.Advise(out)
 	type work struct {
 		w         *integral.ThreeCentreWorkspace
 		local, tr []float64
@@ -301,6 +306,9 @@ func (f *Fit) fitted(ctx context.Context, packed []float64) ([]float64, error) {
 // Coulomb returns the fitted Coulomb matrix J_μν = Σ_λσ (μν|λσ) D_λσ of the
 // symmetric n×n density d.
 func (f *Fit) Coulomb(ctx context.Context, d []float64) ([]float64, error) {
+	if f.b == nil {
+		return nil, errReleased
+	}
 	t, err := f.fitted(ctx, f.packDensity(d))
 	if err != nil {
 		return nil, err
@@ -396,6 +404,9 @@ func factor(d []float64, n int) (vt, lambda []float64, err error) {
 // Exchange returns the fitted exchange matrix K_μν = Σ_λσ (μλ|νσ) D_λσ of
 // the symmetric n×n density d.
 func (f *Fit) Exchange(ctx context.Context, d []float64) ([]float64, error) {
+	if f.b == nil {
+		return nil, errReleased
+	}
 	n := f.n
 	vt, lambda, err := factor(d, n)
 	if err != nil {

@@ -222,6 +222,46 @@ func TestThreadIndependence(t *testing.T) {
 	}
 }
 
+// TestGradientReleasing: the gradient formed in B's memory equals the
+// ordinary one bit for bit (the same operations in the same order, for a
+// restricted and an unrestricted density pair), and the released fit
+// refuses further use with an error.
+func TestGradientReleasing(t *testing.T) {
+	ctx := context.Background()
+	m, orb, aux := testBases(t, "3-21g", "def2-universal-jkfit")
+	rng := rand.New(rand.NewPCG(7, 8))
+	da := randomDensity(rng, orb.NBF, 5, false)
+	db := randomDensity(rng, orb.NBF, 4, false)
+	for _, dens := range [][][]float64{{da}, {da, db}} {
+		f, err := New(ctx, orb, aux, 2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, err := f.Gradient(ctx, dens, 0.2, len(m.Atoms))
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := f.GradientReleasing(ctx, dens, 0.2, len(m.Atoms))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for a := range want {
+			if got[a] != want[a] {
+				t.Fatalf("%d densities: atom %d: %v releasing, %v not", len(dens), a, got[a], want[a])
+			}
+		}
+		if _, err := f.Coulomb(ctx, da); err == nil {
+			t.Error("Coulomb of a released fit: no error")
+		}
+		if _, err := f.Exchange(ctx, da); err == nil {
+			t.Error("Exchange of a released fit: no error")
+		}
+		if _, err := f.Gradient(ctx, dens, 0.2, len(m.Atoms)); err == nil {
+			t.Error("gradient of a released fit: no error")
+		}
+	}
+}
+
 // TestNonSymmetricDensity: exchange is only defined here for symmetric
 // densities; anything else is an error, not a wrong answer.
 func TestNonSymmetricDensity(t *testing.T) {

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"context"
+	"errors"
 	"fmt"
 
 	"poise/energy/internal/kernel"
@@ -19,7 +20,26 @@ import (
 // for Hartree–Fock, the exact-exchange fraction of a hybrid functional, 0
 // for a pure one. The result does not depend on threads.
 func (f *Fit) Gradient(ctx context.Context, dens [][]float64, exchangeFactor float64, natoms int) ([][3]float64, error) {
+	return f.gradient(ctx, dens, exchangeFactor, natoms, false)
+}
+
+// GradientReleasing is Gradient forming the three-centre two-particle
+// density G in the memory of B, which it no longer needs by then: the
+// gradient's peak memory is that of the fit, not twice it, and no array of
+// B's size is allocated. The fit is released: later calls of Coulomb,
+// Exchange or a gradient fail.
+func (f *Fit) GradientReleasing(ctx context.Context, dens [][]float64, exchangeFactor float64, natoms int) ([][3]float64, error) {
+	return f.gradient(ctx, dens, exchangeFactor, natoms, true)
+}
+
+// errReleased is the error of a fit used after GradientReleasing.
+var errReleased = errors.New("fit: used after GradientReleasing released it")
+
+func (f *Fit) gradient(ctx context.Context, dens [][]float64, exchangeFactor float64, natoms int, release bool) ([][3]float64, error) {
 	n, naux, npair := f.n, f.naux, f.npair
+	if f.b == nil {
+		return nil, errReleased
+	}
 	if len(dens) != 1 && len(dens) != 2 {
 		return nil, fmt.Errorf("fit: gradient of %d densities (want 1 or 2)", len(dens))
 	}
@@ -37,8 +57,39 @@ func (f *Fit) Gradient(ctx context.Context, dens [][]float64, exchangeFactor flo
 	}
 	c := solveUpperVector(f.chol, naux, t)
 
-	// G_P,μν starts as c_P D_μν, H as −½ c cᵀ.
-	g := make([]float64, naux*npair)
+	// Exchange, first what needs B: per spin density, its factor and
+	// Bo_R = Vᵀ B_R V.
+	var exch []*exchangeTerms
+	fs := 0.5 * exchangeFactor
+	if exchangeFactor != 0 {
+		// Spin densities and the factor f_s of each in
+		// E_K = −Σ_s f_s Σ D^s D^s (μλ|νσ).
+		spins := dens
+		if len(dens) == 1 {
+			half := make([]float64, n*n)
+			for i, v := range dens[0] {
+				half[i] = 0.5 * v
+			}
+			spins = [][]float64{half}
+			fs = exchangeFactor // two equal spins
+		}
+		for _, ds := range spins {
+			x, err := f.exchangeProjections(ctx, ds)
+			if err != nil {
+				return nil, err
+			}
+			exch = append(exch, x)
+		}
+	}
+
+	// G_P,μν starts as c_P D_μν (in B's memory when releasing: B is no
+	// longer needed), H as −½ c cᵀ.
+	var g []float64
+	if release {
+		g, f.b = f.b, nil
+	} else {
+		g = make([]float64, naux*npair)
+	}
 	dp := make([]float64, npair)
 	for mu := 0; mu < n; mu++ {
 		for nu := 0; nu <= mu; nu++ {
@@ -62,26 +113,13 @@ func (f *Fit) Gradient(ctx context.Context, dens [][]float64, exchangeFactor flo
 			h[p*naux+q] = -0.5 * c[p] * c[q]
 		}
 	}
-
-	if exchangeFactor != 0 {
-		// Spin densities and the factor f_s of each in
-		// E_K = −Σ_s f_s Σ D^s D^s (μλ|νσ).
-		spins := dens
-		fs := 0.5 * exchangeFactor
-		if len(dens) == 1 {
-			half := make([]float64, n*n)
-			for i, v := range dens[0] {
-				half[i] = 0.5 * v
-			}
-			spins = [][]float64{half}
-			fs = exchangeFactor // two equal spins
-		}
+	if len(exch) > 0 {
 		linvT, err := f.inverseTransposed(ctx)
 		if err != nil {
 			return nil, err
 		}
-		for _, ds := range spins {
-			if err := f.exchangeGradientTerms(ctx, ds, fs, linvT, g, h); err != nil {
+		for _, x := range exch {
+			if err := f.exchangeGradientTerms(ctx, x, fs, linvT, g, h); err != nil {
 				return nil, err
 			}
 		}
@@ -105,34 +143,55 @@ func (f *Fit) Gradient(ctx context.Context, dens [][]float64, exchangeFactor flo
 	return out, nil
 }
 
-// exchangeGradientTerms adds the exchange terms of one spin density ds
-// with factor fs to G (−2 f_s D^s Z_P D^s) and H (+f_s M^s).
-func (f *Fit) exchangeGradientTerms(ctx context.Context, ds []float64, fs float64, linvT []float64, g, h []float64) error {
-	n, naux, npair := f.n, f.naux, f.npair
+// exchangeTerms is what the exchange gradient of one spin density needs of
+// B: the density's weighted eigenvectors (rows of vt, r×n) and eigenvalues,
+// and Bo_R = Vᵀ B_R V (r×r per auxiliary function).
+type exchangeTerms struct {
+	vt, lambda, bo []float64
+}
+
+// exchangeProjections factors the spin density ds and projects B on its
+// eigenvectors.
+func (f *Fit) exchangeProjections(ctx context.Context, ds []float64) (*exchangeTerms, error) {
+	n, naux := f.n, f.naux
 	vt, lambda, err := factor(ds, n)
 	if err != nil {
-		return err
+		return nil, err
 	}
+	x := &exchangeTerms{vt: vt, lambda: lambda}
+	r := len(lambda)
+	if r == 0 {
+		return x, nil
+	}
+	r2 := r * r
+	x.bo = make([]float64, naux*r2)
+	nchunk := (naux + auxPerChunk - 1) / auxPerChunk
+	type work struct{ bf, xt []float64 }
+	err = parallelChunks(ctx, f.threads, nchunk, func(ch int, wk *work) {
+		for p := ch * auxPerChunk; p < min((ch+1)*auxPerChunk, naux); p++ {
+			f.unpackRow(p, wk.bf)
+			kernel.DotProducts(vt, r, wk.bf, n, n, wk.xt, n)               // Xᵀ = Vᵀ B_R
+			kernel.DotProducts(wk.xt, r, vt, r, n, x.bo[p*r2:(p+1)*r2], r) // Vᵀ B_R V
+		}
+	}, func() *work { return &work{bf: make([]float64, n*n), xt: make([]float64, r*n)} })
+	return x, err
+}
+
+// exchangeGradientTerms adds the exchange terms of one spin density (its
+// projections x) with factor fs to G (−2 f_s D^s Z_P D^s) and H
+// (+f_s M^s). It does not read B.
+func (f *Fit) exchangeGradientTerms(ctx context.Context, x *exchangeTerms, fs float64, linvT []float64, g, h []float64) error {
+	n, naux, npair := f.n, f.naux, f.npair
+	vt, lambda, bo := x.vt, x.lambda, x.bo
 	r := len(lambda)
 	if r == 0 {
 		return nil
 	}
 	r2 := r * r
-	// Bo_R = Vᵀ B_R V (r×r per auxiliary function).
-	bo := make([]float64, naux*r2)
 	nchunk := (naux + auxPerChunk - 1) / auxPerChunk
-	type work struct{ bf, xt, t, gam []float64 }
+	type work struct{ t, gam []float64 }
 	newWork := func() *work {
-		return &work{bf: make([]float64, n*n), xt: make([]float64, r*n), t: make([]float64, n*r), gam: make([]float64, n*n)}
-	}
-	if err := parallelChunks(ctx, f.threads, nchunk, func(ch int, wk *work) {
-		for p := ch * auxPerChunk; p < min((ch+1)*auxPerChunk, naux); p++ {
-			f.unpackRow(p, wk.bf)
-			kernel.DotProducts(vt, r, wk.bf, n, n, wk.xt, n)             // Xᵀ = Vᵀ B_R
-			kernel.DotProducts(wk.xt, r, vt, r, n, bo[p*r2:(p+1)*r2], r) // Vᵀ B_R V
-		}
-	}, newWork); err != nil {
-		return err
+		return &work{t: make([]float64, n*r), gam: make([]float64, n*n)}
 	}
 	// Zo = L⁻ᵀ Bo (rows P), split by rows.
 	zo := make([]float64, naux*r2)
