@@ -68,7 +68,12 @@
 // translation t gives Σ_B H_{iB} = 0, so its columns are minus the sum of
 // all others' (the dipole about the centre of mass likewise). Benzene
 // (D6h) needs 8 displaced points instead of 72, water (C2v) 5 instead of
-// 18, a molecule without symmetry 6N − 6.
+// 18, a molecule without symmetry 6N − 6. With
+// HessianOptions.RotationalInvariance too, a molecule without symmetry
+// needs 6N − 12: the columns of three more coordinates, of atoms far from
+// the translation atom d, follow from the rotation of the gradient with
+// the molecule, Σ_c (e_k × (r_c − r_d))·H_c = e_k × g (and of the dipole,
+// e_k × μ), solved with the reference gradient g and dipole μ.
 //
 // # Harmonic analysis
 //

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"slices"
 	"sync"
 
 	"poise/gradient"
@@ -106,6 +107,20 @@ type HessianOptions struct {
 	// invariance (a DFT grid moves with the atoms); the derived columns
 	// carry the others' noise, summed.
 	TranslationalInvariance bool
+	// RotationalInvariance, with TranslationalInvariance, lets the
+	// Hessian of a molecule without symmetry (one operation: none is
+	// found, or SymmetryKinds is nil) also use the invariance under rigid
+	// rotations: the gradient turns with the molecule, g(Rx) = R g(x), so
+	// Σ_c (e_k × (r_c − r_d))·H_c = e_k × g (c over the coordinates, d the
+	// atom that follows from translations, g the reference gradient; the
+	// dipole about the centre of mass likewise turns: e_k × μ). Three
+	// more coordinates, of atoms far from d, are then not displaced: a
+	// molecule without symmetry needs 6N − 12 displaced points instead of
+	// 6N − 6. Molecules with nearly collinear atoms keep all of them. A
+	// DFT surface turns with the molecule to its grid's accuracy; the
+	// derived columns carry the others' noise, weighted by their distance
+	// from d over that of the chosen atoms.
+	RotationalInvariance bool
 	// Extrapolate starts every displaced point of a coordinate after its
 	// first (the −h point after the +h one) from the state of the nearest
 	// earlier one extrapolated to its own step (gradient.Extrapolation):
@@ -428,6 +443,9 @@ func (l *layout) assemble(h *Hessian, results []storedPoint, opt HessianOptions)
 			continue
 		}
 		for c := 3 * a; c < 3*a+3; c++ {
+			if slices.Contains(l.fromRotation, c) {
+				continue
+			}
 			for t := 0; t < ns; t++ {
 				grads[t], dips[t] = l.point(results, c, t, scratch[t])
 			}
@@ -489,6 +507,9 @@ func (l *layout) assemble(h *Hessian, results []storedPoint, opt HessianOptions)
 			}
 		}
 	}
+	if l.fromRotation != nil {
+		l.rotationRows(raw, dip, h.GradientAU, h.DipoleAU)
+	}
 	if d := l.fromTranslation; d >= 0 {
 		for k := 0; k < 3; k++ {
 			row, drow := raw[(3*d+k)*n:(3*d+k+1)*n], dip[3*(3*d+k):3*(3*d+k)+3]
@@ -527,6 +548,79 @@ func (l *layout) assemble(h *Hessian, results []storedPoint, opt HessianOptions)
 		for i := 0; i < n; i++ {
 			h.DipoleDerivAU[3*i+i%3] += opt.Charge * opt.MassesU[i/3] / total
 		}
+	}
+}
+
+// rotationRows fills the rows of raw (∂g_j/∂x_c in row c) and dip
+// (∂μ_m/∂x_c at 3c + m) of the coordinates l.fromRotation from the others,
+// except those of the translation atom d, which follow afterwards: the
+// rigid rotation about r_d and axis e_k gives, for every column j,
+// Σ_c v_k[c] raw[c][j] = (e_k × g)_j with v_k[c] = (e_k × (r_b − r_d))_β
+// (c = 3b + β; zero for b = d), and Σ_c v_k[c] dip[c][m] = (e_k × μ)_m for
+// the dipole μ about the centre of mass (which a rotation about any point
+// turns). grad and mu are the reference gradient and dipole.
+func (l *layout) rotationRows(raw, dip []float64, grad []float64, mu [3]float64) {
+	n := len(l.x)
+	d := l.fromTranslation
+	v := make([][3]float64, n) // v[c][k] = v_k[c]
+	for c := 0; c < n; c++ {
+		b, beta := c/3, c%3
+		if b == d {
+			continue
+		}
+		var rho [3]float64
+		for k := range rho {
+			rho[k] = l.x[3*b+k] - l.x[3*d+k]
+		}
+		for k := 0; k < 3; k++ {
+			v[c][k] = crossUnit(k, rho)[beta]
+		}
+	}
+	known := func(c int) bool { return c/3 != d && !slices.Contains(l.fromRotation, c) }
+	// solve sets the derived rows' element at column j (stride: the row
+	// length) of out from the right-hand sides rhs.
+	solve := func(out []float64, stride, j int, rhs [3]float64) {
+		for m, c := range l.fromRotation {
+			s := 0.0
+			for k := 0; k < 3; k++ {
+				s += l.rotInv[m][k] * rhs[k]
+			}
+			out[c*stride+j] = s
+		}
+	}
+	for j := 0; j < n; j++ {
+		var g [3]float64
+		copy(g[:], grad[3*(j/3):3*(j/3)+3])
+		var rhs [3]float64
+		for k := 0; k < 3; k++ {
+			rhs[k] = crossUnit(k, g)[j%3]
+		}
+		for c := 0; c < n; c++ {
+			if !known(c) {
+				continue
+			}
+			r := raw[c*n+j]
+			for k := 0; k < 3; k++ {
+				rhs[k] -= v[c][k] * r
+			}
+		}
+		solve(raw, n, j, rhs)
+	}
+	for m := 0; m < 3; m++ {
+		var rhs [3]float64
+		for k := 0; k < 3; k++ {
+			rhs[k] = crossUnit(k, mu)[m]
+		}
+		for c := 0; c < n; c++ {
+			if !known(c) {
+				continue
+			}
+			r := dip[3*c+m]
+			for k := 0; k < 3; k++ {
+				rhs[k] -= v[c][k] * r
+			}
+		}
+		solve(dip, 3, m, rhs)
 	}
 }
 

@@ -1,11 +1,15 @@
 package freq
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
+
+	"gonum.org/v1/gonum/mat"
 
 	"poise/gradient"
 )
@@ -53,6 +57,11 @@ type layout struct {
 	// fromTranslation is the atom whose columns follow from translational
 	// invariance, −1 for none.
 	fromTranslation int
+	// fromRotation are the coordinates whose columns follow from
+	// rotational invariance (three or none), and rotInv the inverse of the
+	// 3×3 matrix of the rotations restricted to them (see rotationColumns).
+	fromRotation []int
+	rotInv       [3][3]float64
 }
 
 type pointSource struct{ job, op int }
@@ -124,18 +133,146 @@ func newLayout(nat int, x0 []float64, opt *HessianOptions) (*layout, error) {
 			}
 		}
 	}
+	// With rotational invariance too, in a molecule without symmetry,
+	// three more coordinates are not displaced.
+	if opt.RotationalInvariance && l.fromTranslation >= 0 && len(l.sym.ops) == 1 {
+		l.fromRotation, l.rotInv = rotationColumns(l.x, l.fromTranslation)
+	}
 	for a := 0; a < nat && nat > 1; a++ {
 		if l.rep[a].job != a || a == l.fromTranslation {
 			continue
 		}
 		d, src := l.atomPoints(a, opt.AxisOperationsExact)
+		if l.fromRotation != nil {
+			// Without symmetry every point is its own source: drop the
+			// points of the derived coordinates and renumber the rest.
+			kept := d[:0:0]
+			for t := range src {
+				c := 3*a + t/len(l.steps)
+				if slices.Contains(l.fromRotation, c) {
+					src[t] = pointSource{job: -1}
+					continue
+				}
+				kept = append(kept, d[src[t].job])
+				src[t].job = len(kept) - 1
+			}
+			d = kept
+		}
 		first := len(l.jobs)
 		l.jobs = append(l.jobs, d...)
 		for t, p := range src {
-			l.src[3*a*len(l.steps)+t] = pointSource{job: first + p.job, op: p.op}
+			if p.job >= 0 {
+				p.job += first
+			}
+			l.src[3*a*len(l.steps)+t] = p
 		}
 	}
 	return l, nil
+}
+
+// minRotationLeverBohr bounds from below the smallest singular value of the
+// rotations restricted to the coordinates chosen by rotationColumns: below
+// it (nearly collinear atoms) no coordinate is derived from rotations.
+const minRotationLeverBohr = 0.5
+
+// rotationCandidates is the number of atoms farthest from the translation
+// atom whose coordinates rotationColumns considers.
+const rotationCandidates = 8
+
+// rotationColumns chooses the three coordinates whose columns of the
+// Hessian follow from the invariance of the energy under rigid rotations
+// about atom d (whose own columns follow from translations): the
+// coordinates c of other atoms for which the matrix V[k][m] =
+// (e_k × (r_b − r_d))_β (c_m = 3b + β) has the largest smallest singular
+// value, among the coordinates of the atoms farthest from d. It returns the
+// coordinates and V⁻¹, or nil when no choice is well conditioned.
+func rotationColumns(x []float64, d int) ([]int, [3][3]float64) {
+	nat := len(x) / 3
+	type far struct {
+		atom int
+		r2   float64
+	}
+	var atoms []far
+	for b := 0; b < nat; b++ {
+		if b != d {
+			r2 := 0.0
+			for k := 0; k < 3; k++ {
+				r2 += (x[3*b+k] - x[3*d+k]) * (x[3*b+k] - x[3*d+k])
+			}
+			atoms = append(atoms, far{b, r2})
+		}
+	}
+	// Farthest first; ties by atom order (the sort is stable).
+	slices.SortStableFunc(atoms, func(p, q far) int { return cmp.Compare(q.r2, p.r2) })
+	atoms = atoms[:min(len(atoms), rotationCandidates)]
+	var coords []int
+	var cols [][3]float64 // V's column of each candidate coordinate
+	for _, a := range atoms {
+		for beta := 0; beta < 3; beta++ {
+			var rho [3]float64
+			for k := range rho {
+				rho[k] = x[3*a.atom+k] - x[3*d+k]
+			}
+			var col [3]float64
+			for k := 0; k < 3; k++ {
+				col[k] = crossUnit(k, rho)[beta]
+			}
+			coords = append(coords, 3*a.atom+beta)
+			cols = append(cols, col)
+		}
+	}
+	best, choice := 0.0, [3]int{-1, -1, -1}
+	var svd mat.SVD
+	v := mat.NewDense(3, 3, nil)
+	for i := 0; i < len(coords); i++ {
+		for j := i + 1; j < len(coords); j++ {
+			for k := j + 1; k < len(coords); k++ {
+				for m, c := range [3]int{i, j, k} {
+					for r := 0; r < 3; r++ {
+						v.Set(r, m, cols[c][r])
+					}
+				}
+				if !svd.Factorize(v, mat.SVDNone) {
+					continue
+				}
+				if s := svd.Values(nil)[2]; s > best {
+					best, choice = s, [3]int{i, j, k}
+				}
+			}
+		}
+	}
+	if best < minRotationLeverBohr {
+		return nil, [3][3]float64{}
+	}
+	for m, c := range choice {
+		for r := 0; r < 3; r++ {
+			v.Set(r, m, cols[c][r])
+		}
+	}
+	var inv mat.Dense
+	if err := inv.Inverse(v); err != nil {
+		return nil, [3][3]float64{}
+	}
+	var out [3][3]float64
+	for r := 0; r < 3; r++ {
+		for c := 0; c < 3; c++ {
+			out[r][c] = inv.At(r, c)
+		}
+	}
+	picked := []int{coords[choice[0]], coords[choice[1]], coords[choice[2]]}
+	return picked, out
+}
+
+// crossUnit returns e_k × a.
+func crossUnit(k int, a [3]float64) [3]float64 {
+	switch k {
+	case 0:
+		return [3]float64{0, -a[2], a[1]}
+	case 1:
+		return [3]float64{a[2], 0, -a[0]}
+	default:
+		return [3]float64{-a[1], a[0], 0}
+	}
 }
 
 // fixedByAll reports whether every operation leaves atom a in place.

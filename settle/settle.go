@@ -496,6 +496,7 @@ func (r *runner) modes(ctx context.Context, s gradient.Surface, x []float64, cyc
 	if !r.opts.NoSymmetry {
 		hopts.SymmetryKinds = atomicNumbers(r.mol)
 		hopts.TranslationalInvariance = true
+		hopts.RotationalInvariance = true
 		if as, ok := s.(gradient.AxisSymmetric); ok {
 			hopts.AxisOperationsExact = as.AxisOperationsExact()
 		}

@@ -78,8 +78,10 @@ Symmetry: when the structure has a point group (within 0.001 bohr; it is then ma
 symmetric), only one atom of each set of equivalent atoms is displaced and the Hessian
 columns of the others are its rotated images (benzene: 8 displaced points instead of 72);
 one atom that no operation moves is not displaced at all, its columns following from the
-invariance of the energy under translations (water: 5 points instead of 18). --no-symmetry
-displaces every atom.
+invariance of the energy under translations (water: 5 points instead of 18). Without
+symmetry, three more coordinates follow from the invariance under rotations (with the
+reference gradient): 6N − 12 displaced points instead of 6N. --no-symmetry displaces every
+atom.
 
 The structure should be a minimum relaxed tightly (poise relax --converge strict); a
 warning says so when the gradient norm, translations and rotations removed, exceeds
@@ -123,7 +125,7 @@ with DIR/resubmit.sbatch for just those (exit status 5). 'poise task --help' tel
 	fl.StringVar(&f.masses, "mass", "", "masses ATOM=U in u, comma-separated, atoms from 1 (e.g. 2=2.0141)")
 	fl.Float64Var(&f.step, "step", freq.DefaultStepBohr, "finite-difference displacement in bohr")
 	fl.BoolVar(&f.fourPoint, "four-point", false, "fourth-order differences (±step, ±2·step; twice the gradients)")
-	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point (by default images of others under the point group, and one atom by translational invariance, are skipped)")
+	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point (by default images of others under the point group, one atom by translational invariance and, without symmetry, three coordinates by rotational invariance, are skipped)")
 	fl.IntVar(&f.concurrent, "concurrent", 0, "displaced points computed at once, sharing --threads (default: one per thread)")
 	fl.Float64Var(&f.fwhm, "fwhm", defaultFWHMCm1, "Lorentzian full width at half maximum of the IR picture, cm⁻¹")
 	fl.StringVar(&f.plan, "plan", "", "compute the reference point, write every displaced point as a task into DIR for a batch system, with a Slurm job-array script; nothing else is computed")
@@ -341,7 +343,7 @@ type modesCalc struct {
 
 // prepareModes reads the structure in path at the level of lf and prepares
 // the Hessian calculation whose points are kept in work.
-func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmetry bool, work string) (*modesCalc, error) {
+func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmetry, rotations bool, work string) (*modesCalc, error) {
 	s, err := lf.prepare(path)
 	if err != nil {
 		return nil, err
@@ -371,6 +373,7 @@ func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmet
 		}
 		hopts.AxisOperationsExact = surf.AxisOperationsExact()
 		hopts.TranslationalInvariance = true
+		hopts.RotationalInvariance = rotations
 	}
 	return &modesCalc{s: s, conv: conv, surf: surf, x0: gradient.Coordinates(s.mol), masses: masses, hopts: hopts}, nil
 }
@@ -379,7 +382,7 @@ func prepareModes(path string, lf *levelFlags, step float64, fourPoint, noSymmet
 // modes file before the analysis.
 func computeModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags, outDir string) (*freq.File, *freq.Hessian, error) {
 	work := filepath.Join(outDir, "displacements")
-	mc, err := prepareModes(path, lf, f.step, f.fourPoint, f.noSymmetry, work)
+	mc, err := prepareModes(path, lf, f.step, f.fourPoint, f.noSymmetry, true, work)
 	if err != nil {
 		return nil, nil, err
 	}

@@ -29,7 +29,7 @@ const displacementsDir = "displacements"
 
 // planModesCalc prepares the Hessian calculation of a modes plan.
 func planModesCalc(p *planFile, threads int) (*modesCalc, error) {
-	return prepareModes(p.path(p.Input), p.Level.flags(threads), p.StepBohr, p.FourPoint, p.NoSymmetry, p.path(displacementsDir))
+	return prepareModes(p.path(p.Input), p.Level.flags(threads), p.StepBohr, p.FourPoint, p.NoSymmetry, p.Rotations, p.path(displacementsDir))
 }
 
 // planSavedPoints reports the saved points of a modes plan.
@@ -63,10 +63,10 @@ func planModes(cmd *cobra.Command, path string, lf *levelFlags, f *modesFlags) e
 	}
 	p := &planFile{Format: planFormat, Version: planVersion, Kind: planKindM, ProgramVersion: version,
 		Created: time.Now().UTC().Format(time.RFC3339), Source: path, Input: "input.xyz", InputSHA256: sum,
-		Level: levelOf(lf), ThreadsPerTask: lf.threads, StepBohr: f.step, FourPoint: f.fourPoint, NoSymmetry: f.noSymmetry, dir: f.plan}
+		Level: levelOf(lf), ThreadsPerTask: lf.threads, StepBohr: f.step, FourPoint: f.fourPoint, NoSymmetry: f.noSymmetry, Rotations: !f.noSymmetry, dir: f.plan}
 	// The points: those of the calculation the tasks and the assembly
 	// rebuild from the plan (symmetry-unique unless --no-symmetry).
-	pc, err := prepareModes(path, lf, f.step, f.fourPoint, f.noSymmetry, "")
+	pc, err := prepareModes(path, lf, f.step, f.fourPoint, f.noSymmetry, !f.noSymmetry, "")
 	if err != nil {
 		return err
 	}

@@ -96,7 +96,7 @@ reuses them without any SCF.`,
 	fl.StringVar(&f.energyAt, "energy-at", "", "final electronic energy at METHOD/BASIS on the settled geometry")
 	fl.StringVar(&f.storeDir, "store", "", "results store directory (default: $XDG_CACHE_HOME/poise or ~/.cache/poise)")
 	fl.BoolVar(&f.noStore, "no-store", false, "neither read nor write the results store")
-	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point of the Hessians (by default images under the point group, and one atom by translational invariance, are skipped)")
+	fl.BoolVar(&f.noSymmetry, "no-symmetry", false, "evaluate every displaced point of the Hessians (by default images under the point group, one atom by translational invariance and, without symmetry, three coordinates by rotational invariance, are skipped)")
 	return cmd
 }
 

@@ -151,6 +151,10 @@ type planFile struct {
 	FourPoint bool    `json:"four_point,omitempty"`
 	// NoSymmetry: every displaced point is a task, images included.
 	NoSymmetry bool `json:"no_symmetry,omitempty"`
+	// Rotations: in a molecule without symmetry, three coordinates follow
+	// from the invariance under rotations and are not tasks. Plans written
+	// before it existed lack the key and displace them.
+	Rotations bool `json:"rotations,omitempty"`
 	// Reaction plans: the results store the tasks fill.
 	Store string     `json:"store,omitempty"`
 	Tasks []planTask `json:"tasks"`
