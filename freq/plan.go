@@ -483,7 +483,8 @@ func ComputeDisplacements(ctx context.Context, s gradient.Surface, x0 []float64,
 			}
 		}
 	}
-	_, err = computeGroup(ctx, s, l.x, step, opt.Dipole, max(opt.Threads, 1), nil, st, ds, done, opt.Extrapolate, func(int, storedPoint) { computed++ })
+	threads := max(opt.Threads, 1)
+	_, err = computeGroup(ctx, s, l.x, step, opt.Dipole, func() int { return threads }, nil, st, ds, done, opt.Extrapolate, func(int, storedPoint) { computed++ })
 	return computed, err
 }
 

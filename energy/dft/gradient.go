@@ -146,13 +146,14 @@ func (p *Potential) gradBatch(ws *gradWorkspace, bi int, dens [][]float64, facto
 	if m == 0 {
 		return
 	}
-	ws.phi = grow(ws.phi, np*m)
+	// Every element is written below: no clearing needed.
+	ws.phi = resize(ws.phi, np*m)
 	for k := range ws.d1 {
-		ws.d1[k] = grow(ws.d1[k], np*m)
+		ws.d1[k] = resize(ws.d1[k], np*m)
 	}
 	if gga {
 		for k := range ws.d2 {
-			ws.d2[k] = grow(ws.d2[k], np*m)
+			ws.d2[k] = resize(ws.d2[k], np*m)
 		}
 	}
 	evalFunctionDerivatives(p.b, ws, bt.Start, np, shells, m, gga, g.X, g.Y, g.Z)
@@ -301,6 +302,19 @@ func evalFunctionDerivatives(b *integral.Basis, ws *gradWorkspace, start, np int
 			r := [3]float64{gx[i] - cx, gy[i] - cy, gz[i] - cz}
 			rad, d1r, d2r := rs.f0[pt], rs.f1[pt], rs.f2[pt]
 			if math.Abs(rad) < 1e-300 && math.Abs(d1r) < 1e-300 {
+				// Zeros (the blocks are not cleared beforehand).
+				row := pt * m
+				for f := 0; f < nf; f++ {
+					ws.phi[row+col+f] = 0
+					for k := 0; k < 3; k++ {
+						ws.d1[k][row+col+f] = 0
+					}
+					if second {
+						for k := 0; k < 6; k++ {
+							ws.d2[k][row+col+f] = 0
+						}
+					}
+				}
 				continue
 			}
 			for k := 0; k < 3; k++ {
