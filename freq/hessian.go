@@ -51,9 +51,7 @@ type HessianOptions struct {
 	// Concurrent is the number k of displaced points evaluated at once;
 	// 0 means min(Threads, points left). Displaced points are
 	// independent, so one thread per point scales best; a memory-bound
-	// surface may want fewer at a time with more threads each. At the end,
-	// the threads of workers that find no coordinate left go to the
-	// points the others start next.
+	// surface may want fewer at a time with more threads each.
 	Concurrent int
 	// WorkDir, if set, keeps every finished point (one JSON file each,
 	// written atomically) so that an interrupted calculation resumes
@@ -259,15 +257,13 @@ type groupPoint func(i int, p storedPoint)
 // computeGroup evaluates the points of one coordinate's group g that are
 // not done (done[i] false; done may be nil), in order, with extrapolate
 // chaining their starting states, and saves each; it calls finished for
-// every point it computes, each with threads() threads (asked anew for
-// every point: a Hessian gives a group the threads of workers that have
-// run out of groups). The states of saved points that a later point
+// every point it computes. The states of saved points that a later point
 // needs are read from st; a saved point whose state is missing (a work
 // directory written before states were kept, or a later point removed
 // by hand) is evaluated again for it, from the same start as before, so
 // that the later point starts as in an uninterrupted run; again counts
 // those evaluations. State files are removed once the group is complete.
-func computeGroup(ctx context.Context, s gradient.Surface, x0 []float64, step float64, dipole bool, threads func() int, x []float64, st *store,
+func computeGroup(ctx context.Context, s gradient.Surface, x0 []float64, step float64, dipole bool, threads int, x []float64, st *store,
 	g []Displacement, done []bool, extrapolate bool, finished groupPoint) (again int, err error) {
 	states := make(map[int][]byte, len(g))
 	for i, d := range g {
@@ -296,7 +292,7 @@ func computeGroup(ctx context.Context, s gradient.Surface, x0 []float64, step fl
 			}
 		}
 		if saved { // evaluated again for its state only; the saved point stays
-			_, state, err := computePoint(ctx, s, x0, step, d, dipole, threads(), x, &store{}, start, true)
+			_, state, err := computePoint(ctx, s, x0, step, d, dipole, threads, x, &store{}, start, true)
 			if err != nil {
 				return again, err
 			}
@@ -309,7 +305,7 @@ func computeGroup(ctx context.Context, s gradient.Surface, x0 []float64, step fl
 			}
 			continue
 		}
-		p, state, err := computePoint(ctx, s, x0, step, d, dipole, threads(), x, st, start, !last)
+		p, state, err := computePoint(ctx, s, x0, step, d, dipole, threads, x, st, start, !last)
 		if err != nil {
 			return again, err
 		}
@@ -687,10 +683,6 @@ func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, ste
 		evaluated int
 		firstErr  error
 		wg        sync.WaitGroup
-		// idle are the threads of workers that found no group left, shared
-		// by the active workers for their next points (results do not
-		// depend on the thread count).
-		idle, active = 0, k
 	)
 	fail := func(err error) {
 		mu.Lock()
@@ -715,10 +707,6 @@ func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, ste
 				next++
 				mu.Unlock()
 				if t >= len(work) {
-					mu.Lock()
-					idle += share
-					active--
-					mu.Unlock()
 					return
 				}
 				g := work[t]
@@ -726,12 +714,7 @@ func runDisplacements(ctx context.Context, s gradient.Surface, x0 []float64, ste
 				for i := range have {
 					have[i] = !pending[g[0]+i]
 				}
-				threadsNow := func() int {
-					mu.Lock()
-					defer mu.Unlock()
-					return share + idle/active
-				}
-				again, err := computeGroup(cctx, s, x0, step, opt.Dipole, threadsNow, x, st, jobs[g[0]:g[1]], have, opt.Extrapolate, func(i int, p storedPoint) {
+				again, err := computeGroup(cctx, s, x0, step, opt.Dipole, share, x, st, jobs[g[0]:g[1]], have, opt.Extrapolate, func(i int, p storedPoint) {
 					mu.Lock()
 					results[g[0]+i] = p
 					done++

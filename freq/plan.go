@@ -483,8 +483,7 @@ func ComputeDisplacements(ctx context.Context, s gradient.Surface, x0 []float64,
 			}
 		}
 	}
-	threads := max(opt.Threads, 1)
-	_, err = computeGroup(ctx, s, l.x, step, opt.Dipole, func() int { return threads }, nil, st, ds, done, opt.Extrapolate, func(int, storedPoint) { computed++ })
+	_, err = computeGroup(ctx, s, l.x, step, opt.Dipole, max(opt.Threads, 1), nil, st, ds, done, opt.Extrapolate, func(int, storedPoint) { computed++ })
 	return computed, err
 }
 
