@@ -563,18 +563,8 @@ func (l *layout) rotationRows(raw, dip []float64, grad []float64, mu [3]float64)
 	n := len(l.x)
 	d := l.fromTranslation
 	v := make([][3]float64, n) // v[c][k] = v_k[c]
-	for c := 0; c < n; c++ {
-		b, beta := c/3, c%3
-		if b == d {
-			continue
-		}
-		var rho [3]float64
-		for k := range rho {
-			rho[k] = l.x[3*b+k] - l.x[3*d+k]
-		}
-		for k := 0; k < 3; k++ {
-			v[c][k] = crossUnit(k, rho)[beta]
-		}
+	for c := range v {
+		v[c] = rotationLever(l.x, d, c)
 	}
 	known := func(c int) bool { return c/3 != d && !slices.Contains(l.fromRotation, c) }
 	// solve sets the derived rows' element at column j (stride: the row

@@ -209,20 +209,13 @@ func rotationColumns(x []float64, d int) ([]int, [3][3]float64) {
 	var cols [][3]float64 // V's column of each candidate coordinate
 	for _, a := range atoms {
 		for beta := 0; beta < 3; beta++ {
-			var rho [3]float64
-			for k := range rho {
-				rho[k] = x[3*a.atom+k] - x[3*d+k]
-			}
-			var col [3]float64
-			for k := 0; k < 3; k++ {
-				col[k] = crossUnit(k, rho)[beta]
-			}
 			coords = append(coords, 3*a.atom+beta)
-			cols = append(cols, col)
+			cols = append(cols, rotationLever(x, d, 3*a.atom+beta))
 		}
 	}
 	best, choice := 0.0, [3]int{-1, -1, -1}
 	var svd mat.SVD
+	sv := make([]float64, 3)
 	v := mat.NewDense(3, 3, nil)
 	for i := 0; i < len(coords); i++ {
 		for j := i + 1; j < len(coords); j++ {
@@ -235,7 +228,7 @@ func rotationColumns(x []float64, d int) ([]int, [3][3]float64) {
 				if !svd.Factorize(v, mat.SVDNone) {
 					continue
 				}
-				if s := svd.Values(nil)[2]; s > best {
+				if s := svd.Values(sv)[2]; s > best {
 					best, choice = s, [3]int{i, j, k}
 				}
 			}
@@ -261,6 +254,22 @@ func rotationColumns(x []float64, d int) ([]int, [3][3]float64) {
 	}
 	picked := []int{coords[choice[0]], coords[choice[1]], coords[choice[2]]}
 	return picked, out
+}
+
+// rotationLever returns v_k[c] = (e_k × (r_b − r_d))_β for k = 0, 1, 2:
+// how coordinate c = 3b + β moves under the rigid rotations about r_d
+// (zero for b = d).
+func rotationLever(x []float64, d, c int) [3]float64 {
+	b, beta := c/3, c%3
+	var rho [3]float64
+	for k := range rho {
+		rho[k] = x[3*b+k] - x[3*d+k]
+	}
+	var v [3]float64
+	for k := range v {
+		v[k] = crossUnit(k, rho)[beta]
+	}
+	return v
 }
 
 // crossUnit returns e_k × a.

@@ -912,12 +912,10 @@ type batchDensities struct {
 	lsub [][]float64    // else D_s ≈ L Lᵀ: the m×r rows of L of the functions
 	rank []int
 	u    [][]float64 // U = φ·D_sub (np×m), reused by the gradient
-	// Scratch of mulD and the per-spin buffers behind the views above.
-	lt, y   []float64
-	dbuf    [][]float64
-	lbuf    [][]float64
-	rhoBuf  [][]float64
-	gradBuf [][3][]float64
+	// Scratch of mulD, and the per-spin buffers behind dsub and lsub
+	// (which are nil when not in use).
+	lt, y      []float64
+	dbuf, lbuf [][]float64
 }
 
 // mulD sets out (np×m) to x·D_sub of spin s for a point-major np×m block x.
@@ -946,16 +944,14 @@ func batchDensity(bd *batchDensities, phi []float64, d1 [3][]float64, np, m int,
 	gga := d1[0] != nil
 	if len(bd.rho) != nspin {
 		*bd = batchDensities{
-			rho:     make([][]float64, nspin),
-			grad:    make([][3][]float64, nspin),
-			dsub:    make([][]float64, nspin),
-			lsub:    make([][]float64, nspin),
-			rank:    make([]int, nspin),
-			u:       make([][]float64, nspin),
-			dbuf:    make([][]float64, nspin),
-			lbuf:    make([][]float64, nspin),
-			rhoBuf:  make([][]float64, nspin),
-			gradBuf: make([][3][]float64, nspin),
+			rho:  make([][]float64, nspin),
+			grad: make([][3][]float64, nspin),
+			dsub: make([][]float64, nspin),
+			lsub: make([][]float64, nspin),
+			rank: make([]int, nspin),
+			u:    make([][]float64, nspin),
+			dbuf: make([][]float64, nspin),
+			lbuf: make([][]float64, nspin),
 		}
 	}
 	for s := 0; s < nspin; s++ {
@@ -982,15 +978,14 @@ func batchDensity(bd *batchDensities, phi []float64, d1 [3][]float64, np, m int,
 		bd.u[s] = resize(bd.u[s], np*m)
 		u := bd.u[s]
 		bd.mulD(s, phi, np, m, u)
-		bd.rhoBuf[s] = resize(bd.rhoBuf[s], np)
-		r := bd.rhoBuf[s]
-		var gr [3][]float64
+		bd.rho[s] = resize(bd.rho[s], np)
+		r := bd.rho[s]
 		if gga {
-			for k := range gr {
-				bd.gradBuf[s][k] = resize(bd.gradBuf[s][k], np)
-				gr[k] = bd.gradBuf[s][k]
+			for k := range bd.grad[s] {
+				bd.grad[s][k] = resize(bd.grad[s][k], np)
 			}
 		}
+		gr := bd.grad[s]
 		for pt := 0; pt < np; pt++ {
 			ur := u[pt*m : pt*m+m]
 			pr := phi[pt*m : pt*m+m]
@@ -1010,7 +1005,6 @@ func batchDensity(bd *batchDensities, phi []float64, d1 [3][]float64, np, m int,
 				}
 			}
 		}
-		bd.rho[s], bd.grad[s] = r, gr
 	}
 }
 

@@ -593,6 +593,8 @@ func TestCartesianRowsKernels(t *testing.T) {
 							want[1+j], scale[1+j] = tc*d1[j], tc*s1[j]
 						}
 						for j := 0; j < 4 && (j == 0 || grad); j++ {
+							// 1e-14 of the terms' size: some fifty roundings
+							// of 1.1e-16 (common practice).
 							if got := outs[ki][j][p]; math.Abs(got-want[j]) > 1e-14*scale[j] {
 								t.Fatalf("%s %v np=%d: row %d point %d = %.17g, want %.17g (scale %g)", kn.name, e, np, j, p, got, want[j], scale[j])
 							}
@@ -610,6 +612,11 @@ func TestCartesianRowsKernels(t *testing.T) {
 					_, _, _, s1, _ := naiveCartesian(e, x, rad[p], drad[p], 0)
 					for j := 0; j < 3; j++ {
 						a, b := outs[0][1+j][p], outs[1][1+j][p]
+						// A derivative is a sum of two products of up to five
+						// factors; rounded with and without fusing, the two
+						// differ by a few ulps of the terms' size (common
+						// practice: the error bound of such a sum, about the
+						// number of roundings).
 						if math.Abs(a-b) > 8*ulpOf(tc*s1[j]) {
 							t.Fatalf("%v np=%d: derivative %d at %d: %.17g vs %.17g (%.1f ulp of %g)", e, np, j, p, a, b, math.Abs(a-b)/ulpOf(tc*s1[j]), tc*s1[j])
 						}
@@ -701,6 +708,9 @@ func TestCartesianDerivativesKernels(t *testing.T) {
 									if j == 0 && a != b {
 										t.Fatalf("%v np=%d: values differ at %d: %.17g vs %.17g", e, np, p, a, b)
 									}
+									// Second derivatives sum up to four
+									// such products: twice the bound of
+									// the first (common practice, as above).
 									if math.Abs(a-b) > 16*ulpOf(tc*scale[j]) {
 										t.Fatalf("%v np=%d: row %d at %d: %.17g vs %.17g (%.1f ulp of %g)", e, np, j, p, a, b, math.Abs(a-b)/ulpOf(tc*scale[j]), tc*scale[j])
 									}
