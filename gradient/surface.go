@@ -10,6 +10,7 @@ import (
 	"sync/atomic"
 
 	"poise/energy/basis"
+	"poise/energy/buffer"
 	"poise/energy/dft"
 	"poise/energy/dispersion"
 	"poise/energy/fit"
@@ -205,6 +206,12 @@ type SCFSurface struct {
 	mu   sync.Mutex
 	warm *scf.State
 
+	// Memory lent from one evaluation to the next (package buffer): the
+	// stored basis-function values of the DFT grid and the density fit's
+	// three-centre array, at most one per thread each, as many as the
+	// evaluations that may run at once.
+	values, fits *buffer.Pool
+
 	evals atomic.Int64
 }
 
@@ -244,6 +251,7 @@ func NewSCFSurface(mol *molecule.Molecule, cfg Config) (*SCFSurface, error) {
 	if s.threads <= 0 {
 		s.threads = runtime.GOMAXPROCS(0)
 	}
+	s.values, s.fits = buffer.NewPool(s.threads), buffer.NewPool(s.threads)
 	if cfg.Frame != nil {
 		s.frame = *cfg.Frame
 	} else {
@@ -496,6 +504,7 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 	if opts.AuxShells, err = FitShells(s.cfg.Fit, m); err != nil {
 		return nil, err
 	}
+	opts.Buffers = s.fits
 	var pot *dft.Potential
 	if fn := s.cfg.Method; fn != nil && fn.NeedsGrid() {
 		z, pos := atomsOf(m)
@@ -506,6 +515,7 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 		ib := integral.NewBasis(shells)
 		pot = dft.New(fn, g, ib, threads)
 		pot.CacheBytes = XCCacheBytes(opts.MemoryBytes, ib.NBF, opts.AuxShells)
+		pot.Buffers = s.values
 		opts.XC = pot
 		if guess == nil {
 			if opts.XCStart, err = StartXC(fn, z, pos, s.cfg.GridLevel, s.frame, ib, threads, pot.CacheBytes); err != nil {
@@ -517,6 +527,18 @@ func (s *SCFSurface) compute(ctx context.Context, coords []float64, threads int,
 	if res != nil && ctx.Err() == nil {
 		s.evals.Add(1)
 	}
+	// What the point no longer needs goes back to the pools (the
+	// gradient, if any, has released it already; both calls are then
+	// no-ops).
+	defer func() {
+		if pot != nil {
+			pot.ReleaseCache()
+		}
+		if res != nil && res.Fit != nil {
+			res.Fit.Release()
+			res.Fit = nil
+		}
+	}()
 	if err != nil {
 		e := 0.0
 		if res != nil {

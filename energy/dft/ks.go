@@ -6,6 +6,7 @@ import (
 	"runtime"
 	"sync"
 
+	"poise/energy/buffer"
 	"poise/energy/grid"
 	"poise/energy/integral"
 	"poise/energy/internal/hugepage"
@@ -47,8 +48,13 @@ type Potential struct {
 	// keeps nothing. Set it before the first Build; it does not change
 	// results. The memory is freed with the Potential, or by ReleaseCache.
 	CacheBytes int64
-	cache      []batchValues // per batch; vals nil until stored
-	cached     []bool        // per batch: store its values
+	// Buffers, if set, lends the memory of the stored values (taken on the
+	// first Build, handed back by ReleaseCache), so that successive
+	// geometries reuse it instead of faulting in fresh pages. The values
+	// are written before they are read, so this does not change results.
+	Buffers *buffer.Pool
+	cache   []batchValues // per batch; vals nil until stored
+	cached  []bool        // per batch: store its values
 	// slab holds the stored values of all cached batches, batch bi from
 	// slabOff[bi] with room for all functions of its shells: the values
 	// are evaluated there in place, and it is one allocation that can be
@@ -297,19 +303,21 @@ func (p *Potential) prepareCache() {
 		total += int(nv) * m * (bt.End - bt.Start)
 	}
 	if total > 0 {
-		p.slab = make([]float64, total)
+		p.slab = p.Buffers.Get(total)
 		hugepage.Advise(p.slab)
 	}
 }
 
 // ReleaseCache frees the stored function values (for the memory of what
-// follows an SCF, such as a gradient, which does not use them). Later
-// Builds evaluate every batch anew and store nothing.
+// follows an SCF, such as a gradient, which does not use them), handing
+// their memory back to Buffers. Later Builds evaluate every batch anew
+// and store nothing.
 func (p *Potential) ReleaseCache() {
 	if p.cache == nil { // no Build yet: decide now to store nothing
 		p.cache = make([]batchValues, len(p.grid.Batches))
 		p.cached = make([]bool, len(p.grid.Batches))
 	}
+	p.Buffers.Put(p.slab)
 	p.slab, p.slabOff = nil, nil
 	for bi := range p.cache {
 		p.cache[bi] = batchValues{}

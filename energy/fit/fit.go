@@ -10,6 +10,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"poise/energy/buffer"
 	"poise/energy/integral"
 	"poise/energy/internal/hugepage"
 	"poise/energy/internal/kernel"
@@ -46,6 +47,7 @@ type Fit struct {
 	threads  int
 	chol     []float64 // L, V = L Lᵀ, naux×naux row-major (lower triangle)
 	b        []float64 // B = L⁻¹ I, naux rows of npair packed pairs μ ≥ ν
+	buffers  *buffer.Pool
 }
 
 // New computes the three-centre integrals of the orbital basis orb in the
@@ -53,10 +55,17 @@ type Fit struct {
 // means all cores. It fails when the metric is not positive definite (a
 // linearly dependent auxiliary basis).
 func New(ctx context.Context, orb, aux *integral.Basis, threads int) (*Fit, error) {
+	return NewPooled(ctx, orb, aux, threads, nil)
+}
+
+// NewPooled is New with B (the fit's largest array, naux·n(n+1)/2 values)
+// taken from buffers and handed back when the fit is released
+// (GradientReleasing, Release). A nil pool allocates.
+func NewPooled(ctx context.Context, orb, aux *integral.Basis, threads int, buffers *buffer.Pool) (*Fit, error) {
 	if threads <= 0 {
 		threads = runtime.GOMAXPROCS(0)
 	}
-	f := &Fit{orb: orb, aux: aux, n: orb.NBF, naux: aux.NBF, threads: threads}
+	f := &Fit{orb: orb, aux: aux, n: orb.NBF, naux: aux.NBF, threads: threads, buffers: buffers}
 	f.npair = f.n * (f.n + 1) / 2
 	if f.naux == 0 {
 		return nil, errors.New("fit: the auxiliary basis is empty")
@@ -78,6 +87,14 @@ func New(ctx context.Context, orb, aux *integral.Basis, threads int) (*Fit, erro
 		return nil, err
 	}
 	return f, nil
+}
+
+// Release hands B back to the pool the fit was made with (NewPooled) when
+// the fit is no longer needed; like GradientReleasing, it leaves a fit
+// whose further use is an error.
+func (f *Fit) Release() {
+	f.buffers.Put(f.b)
+	f.b = nil
 }
 
 // HeldBytes is the memory a fit of nbf orbital and naux auxiliary
@@ -107,7 +124,9 @@ func (f *Fit) threeCentre(ctx context.Context) ([]float64, error) {
 	// μ ≥ ν (μ in a) are the contiguous packed range [pa0, pa1). Each
 	// chunk fills a pair-major buffer (contiguous writes) and transposes
 	// it into the auxiliary-major result.
-	out := make([]float64, f.naux*f.npair)
+	// Every element is written below (each chunk copies whole pair ranges
+	// of every auxiliary row), so lent memory needs no clearing.
+	out := f.buffers.Get(f.naux * f.npair)
 	// Written once, in shell order: huge pages make the first touch of
 	// these hundreds of MiB (a large molecule's fit) cheaper.
 	hugepage.Advise(out)

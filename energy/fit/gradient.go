@@ -32,8 +32,8 @@ func (f *Fit) GradientReleasing(ctx context.Context, dens [][]float64, exchangeF
 	return f.gradient(ctx, dens, exchangeFactor, natoms, true)
 }
 
-// errReleased is the error of a fit used after GradientReleasing.
-var errReleased = errors.New("fit: used after GradientReleasing released it")
+// errReleased is the error of a fit used after GradientReleasing or Release.
+var errReleased = errors.New("fit: used after it was released (GradientReleasing or Release)")
 
 func (f *Fit) gradient(ctx context.Context, dens [][]float64, exchangeFactor float64, natoms int, release bool) ([][3]float64, error) {
 	n, naux, npair := f.n, f.naux, f.npair
@@ -125,6 +125,9 @@ func (f *Fit) gradient(ctx context.Context, dens [][]float64, exchangeFactor flo
 		}
 	}
 	g3 := f.tc.Gradient(g, natoms, f.threads)
+	if release {
+		f.buffers.Put(g) // B's memory, lent again to a later fit
+	}
 	g2 := f.tc.TwoCentreGradient(h, natoms, f.threads)
 	if err := ctx.Err(); err != nil {
 		return nil, err

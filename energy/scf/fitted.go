@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 
+	"poise/energy/buffer"
 	"poise/energy/fit"
 	"poise/energy/integral"
 )
@@ -26,9 +27,10 @@ type fockBuilder interface {
 // fittedBuilder is a fockBuilder by density fitting (package fit).
 type fittedBuilder struct{ f *fit.Fit }
 
-// newFittedBuilder fits the orbital basis b in the auxiliary basis aux.
-func newFittedBuilder(ctx context.Context, b, aux *integral.Basis, threads int) (*fittedBuilder, error) {
-	f, err := fit.New(ctx, b, aux, threads)
+// newFittedBuilder fits the orbital basis b in the auxiliary basis aux,
+// its three-centre array lent by buffers (nil: allocated).
+func newFittedBuilder(ctx context.Context, b, aux *integral.Basis, threads int, buffers *buffer.Pool) (*fittedBuilder, error) {
+	f, err := fit.NewPooled(ctx, b, aux, threads, buffers)
 	if err != nil {
 		return nil, fmt.Errorf("density fitting: %w", err)
 	}

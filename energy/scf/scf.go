@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"poise/energy/basis"
+	"poise/energy/buffer"
 	"poise/energy/fit"
 	"poise/energy/integral"
 	"poise/energy/molecule"
@@ -76,6 +77,10 @@ type Options struct {
 	// integrals. A Coulomb-only fitting set (basis.RoleJFit) serves
 	// methods without exact exchange only.
 	AuxShells []basis.Shell
+	// Buffers, if set, lends the density fit its three-centre array
+	// (fit.NewPooled); the caller hands it back by releasing Result.Fit.
+	// It does not change results.
+	Buffers *buffer.Pool
 }
 
 // Iteration describes one SCF cycle, for progress display.
@@ -326,7 +331,7 @@ func newProblem(ctx context.Context, mol *molecule.Molecule, shells []basis.Shel
 		return nil, fmt.Errorf("%d α electrons do not fit in %d linearly independent functions", na, p.m)
 	}
 	if opt.AuxShells != nil {
-		p.jk, err = newFittedBuilder(ctx, p.b, integral.NewBasis(opt.AuxShells), opt.Threads)
+		p.jk, err = newFittedBuilder(ctx, p.b, integral.NewBasis(opt.AuxShells), opt.Threads, opt.Buffers)
 	} else {
 		p.jk, err = newJKBuilderLog(ctx, p.b, opt.Threads, opt.MemoryBytes, opt.Log)
 	}
