@@ -11,7 +11,7 @@
 //
 // evaluated batch by batch: basis functions whose extent does not reach a
 // batch's bounding sphere are skipped, the rest are evaluated into dense
-// function×point blocks, functions below 1e-11 (value and first
+// function×point blocks, functions below 1e-9 (value and first
 // derivatives) on every point of the batch are dropped, and densities and
 // potential blocks are formed with matrix–matrix products (register-tiled
 // kernels, see below). Batches are processed in fixed groups and their

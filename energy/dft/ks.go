@@ -15,8 +15,12 @@ import (
 )
 
 // functionCutoff is the value below which a basis function is treated as
-// zero on a batch of grid points.
-const functionCutoff = 1e-11
+// zero on a batch of grid points. 1e-9 (common practice for basis-function
+// screening on grids is 1e-9 to 1e-11): against 1e-11, it keeps 9 % fewer
+// functions per batch for aspirin (116.5 instead of 128.6 on average;
+// 16 % fewer products m²) and moves the benzene B3LYP/6-31G* energy by
+// 2.4e-11 Eh, a hundredth of the SCF's own energy tolerance.
+const functionCutoff = 1e-9
 
 // primitiveCutoff is the size below which a primitive Gaussian's term in a
 // basis function's radial part (or its derivative) is left out: ten orders
