@@ -344,6 +344,16 @@ func (t *ThreeCentre) quartetDeriv(d *eriDeriv, dw *derivWork, bra, ket *derivPa
 	return gA, gB, gC
 }
 
+// deriv3GenFunc returns the generated three-centre derivative code for
+// the orbital pair orb and the auxiliary shell with its unit shell aux
+// (derivPairs), nil if there is none.
+func deriv3GenFunc(orb, aux *derivPair) func(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
+	if orb.la > derivGenMaxL || aux.la > deriv3GenMaxAuxL {
+		return nil
+	}
+	return deriv3GenTable[(orb.la*(derivGenMaxL+1)+orb.lb)*(deriv3GenMaxAuxL+1)+aux.la]
+}
+
 // addDeriv adds the centre derivatives of the canonical quartet with
 // shells sh to g (3 per atom). The fourth centre follows from
 // translational invariance unless it is a unit shell (derivative zero).
@@ -447,13 +457,36 @@ func (t *ThreeCentre) tripleGradient(d *eriDeriv, tw *threeDerivWork, G []float6
 	transformCartesian(tw.t2[:fp*ca*cb], tw.t1, fp, fa, ca, cb, sa.trans)
 	gc := tw.t1[:cp*ca*cb]
 	transformCartesian(gc, tw.t2, 1, fp, cp, ca*cb, sp.trans)
-	// Canonical quartet and Γ in its layout.
-	bra, ket := dp, dq
-	// Strides in gc of the canonical shells' components.
+	// Strides in gc of the orbital pair's components.
 	sA, sB := cb, 1
 	if dp.a != a {
 		sA, sB = 1, cb
 	}
+	if f := deriv3GenFunc(dp, dq); f != nil {
+		// Generated three-centre code: orbital pair in the bra, Γ laid out
+		// [P][a][b] in the pair's orientation.
+		nA, nB := basisNCart(dp.la), basisNCart(dp.lb)
+		gam := tw.dw.gam[:nA*nB*cp]
+		idx := 0
+		for i2 := 0; i2 < cp; i2++ {
+			gp := gc[i2*ca*cb : (i2+1)*ca*cb]
+			for i0 := 0; i0 < nA; i0++ {
+				for i1 := 0; i1 < nB; i1++ {
+					gam[idx] = fac * gp[i0*sA+i1*sB]
+					idx++
+				}
+			}
+		}
+		thr := derivQuartetPrimThreshold
+		if gmax < 1 {
+			thr /= gmax
+		}
+		r := f(dp, dq, gam, thr)
+		t.addDeriv(g, [4]int{dp.a, dp.b, dq.a, dq.b}, [3]float64(r[0:3]), [3]float64(r[3:6]), [3]float64(r[6:9]))
+		return
+	}
+	// Canonical quartet and Γ in its layout.
+	bra, ket := dp, dq
 	str := [4]int{sA, sB, ca * cb, 0}
 	if ket.key() > bra.key() {
 		bra, ket = ket, bra
