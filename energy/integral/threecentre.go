@@ -23,7 +23,14 @@ package integral
 // shell's centre is exactly zero (the derivative of a constant; its raised
 // companion has coefficient 2·0·c = 0), so when the unit shell is the
 // fourth, translationally inferred centre its contribution is dropped
-// rather than formed as a difference of the other three.
+// rather than formed as a difference of the other three. Three-centre
+// classes with orbital l ≤ derivGenMaxL and auxiliary l ≤
+// deriv3GenMaxAuxL have their own generated code (deriv3GenTable in
+// deriv_gen.go): always the orbital pair in the bra and (P·1) in the ket,
+// whose product centre is P's centre, so the ket needs no horizontal
+// recursion and its vertical recursion no QC terms; only the orbital
+// centres are differentiated, ∂/∂C = −(∂/∂A + ∂/∂B) (the unit shell's
+// derivative being zero), which spares the raised auxiliary class.
 
 import (
 	"fmt"

@@ -16,7 +16,8 @@
 //	go run ./energy/integral/internal/gen -o energy/integral/eri_gen.go
 //
 // With -deriv it writes energy/integral/deriv_gen.go instead, the
-// first-derivative classes (see deriv.go):
+// first-derivative classes (see deriv.go) and the three-centre ones (see
+// deriv3.go):
 //
 //	go run ./energy/integral/internal/gen -deriv energy/integral/deriv_gen.go
 package main
