@@ -25,6 +25,7 @@ package main
 import (
 	"bytes"
 	"fmt"
+	"strings"
 )
 
 // gen3MaxAuxL is the highest auxiliary angular momentum with generated
@@ -75,9 +76,34 @@ func genDeriv3Class(w *bytes.Buffer, la, lb, lp int) {
 		}
 	}
 	body, name := emitDerivVRR(plan)
-	zR.each(func(e, f vec) { body.p("%s += %s", zR.name(e, f), name[item{e, f, 0}]) })
-	aR.each(func(e, f vec) { body.p("%s += ta*%s", aR.name(e, f), name[item{e, f, 0}]) })
-	bR.each(func(e, f vec) { body.p("%s += tb*%s", bR.name(e, f), name[item{e, f, 0}]) })
+	// Each value is accumulated right after the line that computes it,
+	// which keeps few values live (and the compile time of the large
+	// classes down).
+	accs := map[string][]string{}
+	zR.each(func(e, f vec) {
+		v := name[item{e, f, 0}]
+		accs[v] = append(accs[v], fmt.Sprintf("%s += %s", zR.name(e, f), v))
+	})
+	aR.each(func(e, f vec) {
+		v := name[item{e, f, 0}]
+		accs[v] = append(accs[v], fmt.Sprintf("%s += ta*%s", aR.name(e, f), v))
+	})
+	bR.each(func(e, f vec) {
+		v := name[item{e, f, 0}]
+		accs[v] = append(accs[v], fmt.Sprintf("%s += tb*%s", bR.name(e, f), v))
+	})
+	var vrr bytes.Buffer
+	for _, a := range accs["f0"] { // the Boys value itself: (ss|s)
+		fmt.Fprintf(&vrr, "%s\n", a)
+	}
+	for _, line := range strings.SplitAfter(body.buf.String(), "\n") {
+		vrr.WriteString(line)
+		if v, _, ok := strings.Cut(line, " := "); ok {
+			for _, a := range accs[v] {
+				fmt.Fprintf(&vrr, "%s\n", a)
+			}
+		}
+	}
 
 	fn := deriv3FuncName(la, lb, lp)
 	fmt.Fprintf(w, "\n// %s returns the derivatives of the three-centre class (%s%s|%s) with\n",
@@ -102,7 +128,7 @@ func genDeriv3Class(w *bytes.Buffer, la, lb, lp int) {
 	fmt.Fprintf(w, "for qi := range ket.prims {\nq := &ket.prims[qi]\n")
 	fmt.Fprintf(w, "if p.bnd*q.bnd < thr {\nbreak\n}\n")
 	emitPrimQuantities(w, u, L)
-	w.Write(body.buf.Bytes())
+	w.Write(vrr.Bytes())
 	fmt.Fprintf(w, "}\n}\n}\n") // ket loop, bra loop, if
 
 	var hrr bytes.Buffer
