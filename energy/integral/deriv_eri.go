@@ -23,6 +23,8 @@ package integral
 // the [e0|f0] needed, the bra weights 2α, 2β applied once per bra
 // primitive pair to the sums over ket primitives, then the horizontal
 // recursion fused with the contraction with Γ (no intermediate blocks).
+// The three-centre gradient has a generated family of its own for an
+// auxiliary shell with its unit shell in the ket (threecentre.go).
 // Other classes use the generic code: the recursion runs over a batch of
 // primitive quartets at once, the batch being the
 // innermost, contiguous index, which keeps the loops long for the heavily

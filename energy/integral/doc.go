@@ -60,8 +60,10 @@
 //     integrals with a unit s shell (exponent 0, coefficient 1) beside each
 //     auxiliary shell, through the same Head-Gordon–Pople code, and their
 //     nuclear derivatives through the derivative code (the unit shell's own
-//     derivative is zero). Orbital shells up to l = 5, auxiliary shells up
-//     to l = 5 (def2-universal-JKFIT needs g).
+//     derivative is zero; generated classes for orbital l ≤ 2 and
+//     auxiliary l ≤ 4 that differentiate the orbital centres only).
+//     Orbital shells up to l = 5, auxiliary shells up to l = 5
+//     (def2-universal-JKFIT needs g).
 //
 // Package-level tables (the Boys-function grid, the Cartesian recurrence
 // index table) are read-only data computed once at initialization; the

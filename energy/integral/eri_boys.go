@@ -16,7 +16,7 @@ import "math"
 // for m ≤ eriBoysMaxM at t = 60 (checked by TestERIBoysInline).
 
 const (
-	eriBoysMaxM    = 8 // highest order tabulated (four d shells)
+	eriBoysMaxM    = 9 // highest order tabulated (four d shells; three-centre derivatives (dd|g))
 	eriBoysTerms   = 8 // Taylor terms per order
 	eriBoysRow     = (eriBoysMaxM + 1) * eriBoysTerms
 	eriBoysStep    = 0.1  // grid spacing h

@@ -23,7 +23,14 @@ package integral
 // shell's centre is exactly zero (the derivative of a constant; its raised
 // companion has coefficient 2·0·c = 0), so when the unit shell is the
 // fourth, translationally inferred centre its contribution is dropped
-// rather than formed as a difference of the other three.
+// rather than formed as a difference of the other three. Three-centre
+// classes with orbital l ≤ derivGenMaxL and auxiliary l ≤
+// deriv3GenMaxAuxL have their own generated code (deriv3GenTable in
+// deriv_gen.go): always the orbital pair in the bra and (P·1) in the ket,
+// whose product centre is P's centre, so the ket needs no horizontal
+// recursion and its vertical recursion no QC terms; only the orbital
+// centres are differentiated, ∂/∂C = −(∂/∂A + ∂/∂B) (the unit shell's
+// derivative being zero), which spares the raised auxiliary class.
 
 import (
 	"fmt"
@@ -52,6 +59,9 @@ type ThreeCentre struct {
 	auxSchwarz []float64
 	orbSchwarz []float64 // triangular over orbital shells, as orbPairs
 	atom       []int     // atom of every shell of comb
+	// orbDiag is the diagonal of an orbital shell's transformation when it
+	// is diagonal (Cartesian shells), nil otherwise.
+	orbDiag [][]float64
 }
 
 // MaxShellL is the highest angular momentum of a shell that the
@@ -102,6 +112,10 @@ func NewThreeCentre(orb, aux *Basis) *ThreeCentre {
 	for i := range comb.Shells {
 		t.atom[i] = comb.Shells[i].Atom
 	}
+	t.orbDiag = make([][]float64, t.norb)
+	for i := range orb.shells {
+		t.orbDiag[i] = transformDiagonal(&orb.shells[i])
+	}
 	t.orbPairs = make([]eriPair, t.norb*(t.norb+1)/2)
 	for i := 0; i < t.norb; i++ {
 		for j := 0; j <= i; j++ {
@@ -136,6 +150,26 @@ func diagonalRoot(v []float64, n int) float64 {
 		mx = math.Max(mx, math.Abs(v[x*n+x]))
 	}
 	return math.Sqrt(mx)
+}
+
+// transformDiagonal returns the diagonal of the shell's transformation if
+// it is square and diagonal, nil otherwise.
+func transformDiagonal(s *shellData) []float64 {
+	n := s.ncart
+	if s.nfunc != n {
+		return nil
+	}
+	d := make([]float64, n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			if v := s.trans[i*n+j]; i == j {
+				d[i] = v
+			} else if v != 0 {
+				return nil
+			}
+		}
+	}
+	return d
 }
 
 // unitShell is the constant function 1 at centre c as a shell: exponent 0,
@@ -344,6 +378,16 @@ func (t *ThreeCentre) quartetDeriv(d *eriDeriv, dw *derivWork, bra, ket *derivPa
 	return gA, gB, gC
 }
 
+// deriv3GenFunc returns the generated three-centre derivative code for
+// the orbital pair orb and the auxiliary shell with its unit shell aux
+// (derivPairs), nil if there is none.
+func deriv3GenFunc(orb, aux *derivPair) func(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
+	if orb.la > derivGenMaxL || aux.la > deriv3GenMaxAuxL {
+		return nil
+	}
+	return deriv3GenTable[(orb.la*(derivGenMaxL+1)+orb.lb)*(deriv3GenMaxAuxL+1)+aux.la]
+}
+
 // addDeriv adds the centre derivatives of the canonical quartet with
 // shells sh to g (3 per atom). The fourth centre follows from
 // translational invariance unless it is a unit shell (derivative zero).
@@ -425,16 +469,22 @@ func (t *ThreeCentre) tripleGradient(d *eriDeriv, tw *threeDerivWork, G []float6
 		row := G[(op+i)*npair:]
 		for x := 0; x < fa; x++ {
 			mu := oa + x
-			for y := 0; y < fb; y++ {
-				nu := ob + y
-				var val float64
-				if mu >= nu {
-					val = row[mu*(mu+1)/2+nu]
-				} else {
-					val = row[nu*(nu+1)/2+mu]
+			dst := gf[(i*fa+x)*fb : (i*fa+x+1)*fb]
+			if a > b {
+				// μ > ν throughout: a contiguous run of the packed row.
+				copy(dst, row[mu*(mu+1)/2+ob:])
+			} else {
+				for y := range dst {
+					nu := ob + y
+					if mu >= nu {
+						dst[y] = row[mu*(mu+1)/2+nu]
+					} else {
+						dst[y] = row[nu*(nu+1)/2+mu]
+					}
 				}
-				gf[(i*fa+x)*fb+y] = val
-				gmax = math.Max(gmax, math.Abs(val))
+			}
+			for _, v := range dst {
+				gmax = max(gmax, math.Abs(v))
 			}
 		}
 	}
@@ -442,18 +492,66 @@ func (t *ThreeCentre) tripleGradient(d *eriDeriv, tw *threeDerivWork, G []float6
 	if t.OrbitalSchwarz(a, b)*t.auxSchwarz[p]*gmax < derivScreenThreshold {
 		return
 	}
+	f := deriv3GenFunc(dp, dq)
+	if da, db := t.orbDiag[a], t.orbDiag[b]; f != nil && da != nil && db != nil {
+		// Generated code with Cartesian orbital shells: fac·Γ over
+		// [P][a][b] in the pair's orientation, scaled by the diagonal
+		// orbital transformations, then carried to the auxiliary
+		// shell's Cartesian components.
+		nab := fa * fb
+		g2 := tw.t1[:fp*nab]
+		for i := 0; i < fp; i++ {
+			for x := 0; x < fa; x++ {
+				src := gf[(i*fa+x)*fb : (i*fa+x+1)*fb]
+				sx := fac * da[x]
+				if dp.a == a {
+					dst := g2[(i*fa+x)*fb : (i*fa+x+1)*fb]
+					for y, v := range src {
+						dst[y] = sx * db[y] * v
+					}
+				} else {
+					dst := g2[i*nab : (i+1)*nab]
+					for y, v := range src {
+						dst[y*fa+x] = sx * db[y] * v
+					}
+				}
+			}
+		}
+		gam := tw.dw.gam[:cp*nab]
+		transformCartesian(gam, g2, 1, fp, cp, nab, sp.trans)
+		t.deriv3(f, g, dp, dq, gam, gmax)
+		return
+	}
 	// To Cartesian components: [cP][ca][cb].
 	transformCartesian(tw.t1[:fp*fa*cb], gf, fp*fa, fb, cb, 1, sb.trans)
 	transformCartesian(tw.t2[:fp*ca*cb], tw.t1, fp, fa, ca, cb, sa.trans)
 	gc := tw.t1[:cp*ca*cb]
 	transformCartesian(gc, tw.t2, 1, fp, cp, ca*cb, sp.trans)
-	// Canonical quartet and Γ in its layout.
-	bra, ket := dp, dq
-	// Strides in gc of the canonical shells' components.
+	// Strides in gc of the orbital pair's components.
 	sA, sB := cb, 1
 	if dp.a != a {
 		sA, sB = 1, cb
 	}
+	if f != nil {
+		// Generated three-centre code: orbital pair in the bra, Γ laid out
+		// [P][a][b] in the pair's orientation.
+		nA, nB := basisNCart(dp.la), basisNCart(dp.lb)
+		gam := tw.dw.gam[:nA*nB*cp]
+		idx := 0
+		for i2 := 0; i2 < cp; i2++ {
+			gp := gc[i2*ca*cb : (i2+1)*ca*cb]
+			for i0 := 0; i0 < nA; i0++ {
+				for i1 := 0; i1 < nB; i1++ {
+					gam[idx] = fac * gp[i0*sA+i1*sB]
+					idx++
+				}
+			}
+		}
+		t.deriv3(f, g, dp, dq, gam, gmax)
+		return
+	}
+	// Canonical quartet and Γ in its layout.
+	bra, ket := dp, dq
 	str := [4]int{sA, sB, ca * cb, 0}
 	if ket.key() > bra.key() {
 		bra, ket = ket, bra
@@ -479,6 +577,19 @@ func (t *ThreeCentre) tripleGradient(d *eriDeriv, tw *threeDerivWork, G []float6
 	}
 	gA, gB, gC := t.quartetDeriv(d, tw.dw, bra, ket, gam, gmax)
 	t.addDeriv(g, sh, gA, gB, gC)
+}
+
+// deriv3 adds the derivatives of the three-centre class of the orbital
+// pair orb and the auxiliary pair aux, computed by the generated code f
+// with the Cartesian density gam ([P][a][b]) whose largest element is
+// bounded by gmax, to g.
+func (t *ThreeCentre) deriv3(f func(bra, ket *derivPair, g []float64, thr float64) [9]float64, g []float64, orb, aux *derivPair, gam []float64, gmax float64) {
+	thr := derivQuartetPrimThreshold
+	if gmax < 1 {
+		thr /= gmax
+	}
+	r := f(orb, aux, gam, thr)
+	t.addDeriv(g, [4]int{orb.a, orb.b, aux.a, aux.b}, [3]float64(r[0:3]), [3]float64(r[3:6]), [3]float64(r[6:9]))
 }
 
 // TwoCentreGradient returns g[A][k] = Σ_{P,Q} H_PQ ∂(P|Q)/∂R_{A,k} for

@@ -29,10 +29,12 @@ import (
 )
 
 // region is a block of contracted [e0|f0] values: |e| ∈ [e0, e1],
-// |f| ∈ [f0, f1], laid out [e][f] over the cumulative component indices.
+// |f| ∈ [f0, f1], laid out [e][f] over the cumulative component indices
+// ([f][e] if fOuter).
 type region struct {
 	e0, e1, f0, f1 int
 	prefix         string // scalar names prefix%d, or array prefix[%d]
+	fOuter         bool   // layout [f][e], always an array
 }
 
 func (r region) ne() int   { return cum(r.e1+1) - cum(r.e0) }
@@ -44,10 +46,13 @@ func (r region) empty() bool {
 func (r region) has(e, f vec) bool {
 	return !r.empty() && e.level() >= r.e0 && e.level() <= r.e1 && f.level() >= r.f0 && f.level() <= r.f1
 }
-func (r region) array() bool { return r.size() > derivAccScalarMax }
+func (r region) array() bool { return r.fOuter || r.size() > derivAccScalarMax }
 
 func (r region) name(e, f vec) string {
 	i := (cumIndex(e)-cum(r.e0))*r.nf() + cumIndex(f) - cum(r.f0)
+	if r.fOuter {
+		i = (cumIndex(f)-cum(r.f0))*r.ne() + cumIndex(e) - cum(r.e0)
+	}
 	if r.array() {
 		return fmt.Sprintf("%s[%d]", r.prefix, i)
 	}
@@ -102,20 +107,20 @@ func genDerivClass(w *bytes.Buffer, la, lb, lc, ld int) {
 	}
 	// Inner (per bra primitive) unweighted sums: every class built from
 	// f ∈ [lc, lcd] except (ab|c+1 d).
-	sR := region{e0, lab + 1, lc, lcd, "u"}
+	sR := region{e0, lab + 1, lc, lcd, "u", false}
 	// Flushed per bra primitive: unweighted (lowered classes), 2α, 2β.
-	zR := region{e0, lab, lc, lcd, "z"}
+	zR := region{e0, lab, lc, lcd, "z", false}
 	if la == 0 && lb == 0 && lc == 0 {
-		zR = region{0, -1, 0, -1, "z"}
+		zR = region{0, -1, 0, -1, "z", false}
 	}
-	aR := region{la + 1, lab + 1, lc, lcd, "xa"}
-	bR := region{la, lab + 1, lc, lcd, "xb"}
+	aR := region{la + 1, lab + 1, lc, lcd, "xa", false}
+	bR := region{la, lab + 1, lc, lcd, "xb", false}
 	// Summed in the inner loop: 2γ-weighted for (ab|c+1 d) and the
 	// unweighted level |f| = lc−1 of (ab|c−1 d).
-	cR := region{la, lab, lc + 1, lcd + 1, "xc"}
-	dR := region{0, -1, 0, -1, "xd"}
+	cR := region{la, lab, lc + 1, lcd + 1, "xc", false}
+	dR := region{0, -1, 0, -1, "xd", false}
 	if lc > 0 {
-		dR = region{la, lab, lc - 1, lc - 1, "xd"}
+		dR = region{la, lab, lc - 1, lc - 1, "xd", false}
 	}
 
 	var targets []item
@@ -140,39 +145,7 @@ func genDerivClass(w *bytes.Buffer, la, lb, lc, ld int) {
 		}
 	}
 
-	var body emitter
-	body.used = map[string]bool{}
-	use := func(s string) string { body.used[s] = true; return s }
-	name := map[item]string{}
-	for n, it := range plan.order {
-		v := fmt.Sprintf("v%d", n)
-		name[it] = v
-		switch {
-		case it.f.level() > 0:
-			i := plan.dir[it]
-			f1 := it.f.add(i, -1)
-			expr := fmt.Sprintf("%s*%s + %s*%s", use("qc"+axis[i]), name[item{it.e, f1, it.m}], use("wq"+axis[i]), name[item{it.e, f1, it.m + 1}])
-			if f1[i] > 0 {
-				f2 := f1.add(i, -1)
-				expr += " + " + mulInt(f1[i], fmt.Sprintf("(%s*%s - %s*%s)", use("oo2e"), name[item{it.e, f2, it.m}], use("roe"), name[item{it.e, f2, it.m + 1}]))
-			}
-			if it.e[i] > 0 {
-				expr += " + " + mulInt(it.e[i], fmt.Sprintf("%s*%s", use("oo2zn"), name[item{it.e.add(i, -1), f1, it.m + 1}]))
-			}
-			body.p("%s := %s", v, expr)
-		case it.e.level() > 0:
-			i := plan.dir[it]
-			e1 := it.e.add(i, -1)
-			expr := fmt.Sprintf("%s*%s + %s*%s", use("pa"+axis[i]), name[item{e1, it.f, it.m}], use("wp"+axis[i]), name[item{e1, it.f, it.m + 1}])
-			if e1[i] > 0 {
-				e2 := e1.add(i, -1)
-				expr += " + " + mulInt(e1[i], fmt.Sprintf("(%s*%s - %s*%s)", use("oo2z"), name[item{e2, it.f, it.m}], use("roz"), name[item{e2, it.f, it.m + 1}]))
-			}
-			body.p("%s := %s", v, expr)
-		default:
-			name[it] = fmt.Sprintf("f%d", it.m)
-		}
-	}
+	body, name := emitDerivVRR(plan)
 	// Inner-loop accumulation.
 	sR.each(func(e, f vec) { body.p("%s += %s", sR.name(e, f), name[item{e, f, 0}]) })
 	cR.each(func(e, f vec) { body.p("%s += tc*%s", cR.name(e, f), name[item{e, f, 0}]) })
@@ -195,48 +168,9 @@ func genDerivClass(w *bytes.Buffer, la, lb, lc, ld int) {
 			fmt.Fprintf(w, "pa%s := p.pa[%d]\n", axis[i], i)
 		}
 	}
-	needRz := u["wpx"] || u["wpy"] || u["wpz"] || u["roz"]
-	needRe := u["wqx"] || u["wqy"] || u["wqz"] || u["roe"]
 	fmt.Fprintf(w, "for qi := range ket.prims {\nq := &ket.prims[qi]\n")
 	fmt.Fprintf(w, "if p.bnd*q.bnd < thr {\nbreak\n}\n")
-	fmt.Fprintf(w, "ozn := 1 / (p.zeta + q.zeta)\n")
-	fmt.Fprintf(w, "pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]\n")
-	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)\n")
-	fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
-	genBoys(w, L)
-	if needRz {
-		fmt.Fprintf(w, "rz := q.zeta * ozn\n")
-	}
-	if needRe {
-		fmt.Fprintf(w, "re := p.zeta * ozn\n")
-	}
-	for i := 0; i < 3; i++ {
-		pq := "pq" + axis[i]
-		if u["wp"+axis[i]] {
-			fmt.Fprintf(w, "wp%s := -rz * %s\n", axis[i], pq)
-		}
-		if u["wq"+axis[i]] {
-			fmt.Fprintf(w, "wq%s := re * %s\n", axis[i], pq)
-		}
-		if u["qc"+axis[i]] {
-			fmt.Fprintf(w, "qc%s := q.pa[%d]\n", axis[i], i)
-		}
-	}
-	if u["oo2z"] {
-		fmt.Fprintf(w, "oo2z := p.oo2z\n")
-	}
-	if u["roz"] {
-		fmt.Fprintf(w, "roz := rz * p.oo2z\n")
-	}
-	if u["oo2e"] {
-		fmt.Fprintf(w, "oo2e := q.oo2z\n")
-	}
-	if u["roe"] {
-		fmt.Fprintf(w, "roe := re * q.oo2z\n")
-	}
-	if u["oo2zn"] {
-		fmt.Fprintf(w, "oo2zn := 0.5 * ozn\n")
-	}
+	emitPrimQuantities(w, u, L)
 	fmt.Fprintf(w, "tc := q.ta\n")
 	w.Write(body.buf.Bytes())
 	fmt.Fprintf(w, "}\n") // ket loop
@@ -298,6 +232,108 @@ func genDerivClass(w *bytes.Buffer, la, lb, lc, ld int) {
 	fmt.Fprintf(w, "return [9]float64{ga0, ga1, ga2, gb0, gb1, gb2, gc0, gc1, gc2}\n}\n")
 }
 
+// emitDerivVRR emits the vertical recursion of plan, one variable per
+// item (f0 … fL for the Boys values), and returns the code and the names.
+// For a unit-shell ket (plan.unitKet) the QC terms are left out.
+func emitDerivVRR(plan *vrrPlan) (*emitter, map[item]string) {
+	body := &emitter{}
+	body.used = map[string]bool{}
+	use := func(s string) string { body.used[s] = true; return s }
+	name := map[item]string{}
+	for n, it := range plan.order {
+		v := fmt.Sprintf("v%d", n)
+		name[it] = v
+		switch {
+		case plan.ketFirst && it.e.level() > 0:
+			i := plan.dir[it]
+			e1 := it.e.add(i, -1)
+			expr := fmt.Sprintf("%s*%s + %s*%s", use("pa"+axis[i]), name[item{e1, it.f, it.m}], use("wp"+axis[i]), name[item{e1, it.f, it.m + 1}])
+			if e1[i] > 0 {
+				e2 := e1.add(i, -1)
+				expr += " + " + mulInt(e1[i], fmt.Sprintf("(%s*%s - %s*%s)", use("oo2z"), name[item{e2, it.f, it.m}], use("roz"), name[item{e2, it.f, it.m + 1}]))
+			}
+			if it.f[i] > 0 {
+				expr += " + " + mulInt(it.f[i], fmt.Sprintf("%s*%s", use("oo2zn"), name[item{e1, it.f.add(i, -1), it.m + 1}]))
+			}
+			body.p("%s := %s", v, expr)
+		case it.f.level() > 0:
+			i := plan.dir[it]
+			f1 := it.f.add(i, -1)
+			var expr string
+			if plan.unitKet {
+				expr = fmt.Sprintf("%s*%s", use("wq"+axis[i]), name[item{it.e, f1, it.m + 1}])
+			} else {
+				expr = fmt.Sprintf("%s*%s + %s*%s", use("qc"+axis[i]), name[item{it.e, f1, it.m}], use("wq"+axis[i]), name[item{it.e, f1, it.m + 1}])
+			}
+			if f1[i] > 0 {
+				f2 := f1.add(i, -1)
+				expr += " + " + mulInt(f1[i], fmt.Sprintf("(%s*%s - %s*%s)", use("oo2e"), name[item{it.e, f2, it.m}], use("roe"), name[item{it.e, f2, it.m + 1}]))
+			}
+			if it.e[i] > 0 {
+				expr += " + " + mulInt(it.e[i], fmt.Sprintf("%s*%s", use("oo2zn"), name[item{it.e.add(i, -1), f1, it.m + 1}]))
+			}
+			body.p("%s := %s", v, expr)
+		case it.e.level() > 0:
+			i := plan.dir[it]
+			e1 := it.e.add(i, -1)
+			expr := fmt.Sprintf("%s*%s + %s*%s", use("pa"+axis[i]), name[item{e1, it.f, it.m}], use("wp"+axis[i]), name[item{e1, it.f, it.m + 1}])
+			if e1[i] > 0 {
+				e2 := e1.add(i, -1)
+				expr += " + " + mulInt(e1[i], fmt.Sprintf("(%s*%s - %s*%s)", use("oo2z"), name[item{e2, it.f, it.m}], use("roz"), name[item{e2, it.f, it.m + 1}]))
+			}
+			body.p("%s := %s", v, expr)
+		default:
+			name[it] = fmt.Sprintf("f%d", it.m)
+		}
+	}
+	return body, name
+}
+
+// emitPrimQuantities emits, inside the loop over primitive quartets p, q,
+// the Boys values f0 … fL and the recursion coefficients the body uses.
+func emitPrimQuantities(w *bytes.Buffer, u map[string]bool, L int) {
+	needRz := u["wpx"] || u["wpy"] || u["wpz"] || u["roz"]
+	needRe := u["wqx"] || u["wqy"] || u["wqz"] || u["roe"]
+	fmt.Fprintf(w, "ozn := 1 / (p.zeta + q.zeta)\n")
+	fmt.Fprintf(w, "pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]\n")
+	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)\n")
+	fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
+	genBoys(w, L)
+	if needRz {
+		fmt.Fprintf(w, "rz := q.zeta * ozn\n")
+	}
+	if needRe {
+		fmt.Fprintf(w, "re := p.zeta * ozn\n")
+	}
+	for i := 0; i < 3; i++ {
+		pq := "pq" + axis[i]
+		if u["wp"+axis[i]] {
+			fmt.Fprintf(w, "wp%s := -rz * %s\n", axis[i], pq)
+		}
+		if u["wq"+axis[i]] {
+			fmt.Fprintf(w, "wq%s := re * %s\n", axis[i], pq)
+		}
+		if u["qc"+axis[i]] {
+			fmt.Fprintf(w, "qc%s := q.pa[%d]\n", axis[i], i)
+		}
+	}
+	if u["oo2z"] {
+		fmt.Fprintf(w, "oo2z := p.oo2z\n")
+	}
+	if u["roz"] {
+		fmt.Fprintf(w, "roz := rz * p.oo2z\n")
+	}
+	if u["oo2e"] {
+		fmt.Fprintf(w, "oo2e := q.oo2z\n")
+	}
+	if u["roe"] {
+		fmt.Fprintf(w, "roe := re * q.oo2z\n")
+	}
+	if u["oo2zn"] {
+		fmt.Fprintf(w, "oo2zn := 0.5 * ozn\n")
+	}
+}
+
 // contraction describes how genDerivHRR folds a derivative class into the
 // gradient: the class has momentum one above (up) or below the original
 // class (ls) on centre x; each element adds to the accumulators
@@ -339,8 +375,8 @@ func (c contraction) emit(w *bytes.Buffer, v [4]vec, val string) {
 
 // genDerivHRR emits the horizontal recursion of class (la lb|lc ld) from
 // the contracted [e0|f0] named by src into the slice dst, laid out
-// [a][b][c][d], and its contraction with the two-particle density; cnt
-// numbers the temporaries.
+// [a][b][c][d] (not stored if dst is empty), and its contraction with the
+// two-particle density; cnt numbers the temporaries.
 func genDerivHRR(w *bytes.Buffer, la, lb, lc, ld int, src func(e, f vec) string, dst string, cnt *int, con contraction) {
 	na, nb, nc, nd := ncart(la), ncart(lb), ncart(lc), ncart(ld)
 	nf := cum(lc+ld+1) - cum(lc)
@@ -348,7 +384,11 @@ func genDerivHRR(w *bytes.Buffer, la, lb, lc, ld int, src func(e, f vec) string,
 	for lf := lc; lf <= lc+ld; lf++ {
 		fs = append(fs, comps(lf)...)
 	}
-	fmt.Fprintf(w, "{\nout := (*[%d]float64)(%s)\n", na*nb*nc*nd, dst)
+	if dst == "" {
+		fmt.Fprintf(w, "{\n")
+	} else {
+		fmt.Fprintf(w, "{\nout := (*[%d]float64)(%s)\n", na*nb*nc*nd, dst)
+	}
 	gname := make([][]string, na*nb)
 	for i := range gname {
 		gname[i] = make([]string, nf)
@@ -391,7 +431,9 @@ func genDerivHRR(w *bytes.Buffer, la, lb, lc, ld int, src func(e, f vec) string,
 		va, vb := ca[ab/nb], cb[ab%nb]
 		if ld == 0 {
 			for c := 0; c < nc; c++ {
-				fmt.Fprintf(w, "out[%d] = %s\n", ab*nc+c, gname[ab][c])
+				if dst != "" {
+					fmt.Fprintf(w, "out[%d] = %s\n", ab*nc+c, gname[ab][c])
+				}
 				con.emit(w, [4]vec{va, vb, cc[c], {}}, gname[ab][c])
 			}
 			continue
@@ -412,7 +454,9 @@ func genDerivHRR(w *bytes.Buffer, la, lb, lc, ld int, src func(e, f vec) string,
 			if it.a.level() == lc && it.b.level() == ld {
 				ic := cumIndex(it.a) - cum(lc)
 				id := cumIndex(it.b) - cum(ld)
-				fmt.Fprintf(w, "out[%d] = %s\n", (ab*nc+ic)*nd+id, v)
+				if dst != "" {
+					fmt.Fprintf(w, "out[%d] = %s\n", (ab*nc+ic)*nd+id, v)
+				}
 				con.emit(w, [4]vec{va, vb, it.a, it.b}, v)
 			}
 		}
@@ -468,6 +512,7 @@ func writeDeriv(path string) error {
 	for _, c := range classes {
 		genDerivClass(&w, c[0], c[1], c[2], c[3])
 	}
+	writeDeriv3(&w)
 	src, err := format.Source(w.Bytes())
 	if err != nil {
 		os.Stdout.Write(w.Bytes())

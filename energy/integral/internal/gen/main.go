@@ -16,7 +16,8 @@
 //	go run ./energy/integral/internal/gen -o energy/integral/eri_gen.go
 //
 // With -deriv it writes energy/integral/deriv_gen.go instead, the
-// first-derivative classes (see deriv.go):
+// first-derivative classes (see deriv.go) and the three-centre ones (see
+// deriv3.go):
 //
 //	go run ./energy/integral/internal/gen -deriv energy/integral/deriv_gen.go
 package main
@@ -111,10 +112,23 @@ type vrrPlan struct {
 	order []item       // dependencies first
 	dir   map[item]int // reduction axis (ket if f ≠ 0, else bra)
 	flops int
+	// unitKet: the ket pair is an auxiliary shell with the unit shell at
+	// its centre, so Q = C and the QC terms of the ket step vanish.
+	unitKet bool
+	// ketFirst: [0|f] is built first and transferred to the bra
+	// (Obara–Saika on the bra with the coupling term f_i/(2(ζ+η))),
+	// rather than [e|0] first and transferred to the ket.
+	ketFirst bool
 }
 
 func planVRR(targets []item, br, kr rule) *vrrPlan {
-	p := &vrrPlan{dir: map[item]int{}}
+	return planVRRKet(targets, br, kr, false, false)
+}
+
+// planVRRKet is planVRR, for a unit-shell ket pair if unitKet, building
+// the ket side first if ketFirst.
+func planVRRKet(targets []item, br, kr rule, unitKet, ketFirst bool) *vrrPlan {
+	p := &vrrPlan{dir: map[item]int{}, unitKet: unitKet, ketFirst: ketFirst}
 	seen := map[item]bool{}
 	var visit func(it item)
 	visit = func(it item) {
@@ -137,12 +151,32 @@ func planVRR(targets []item, br, kr rule) *vrrPlan {
 func vrrDeps(it item, br, kr rule, p *vrrPlan) []item {
 	var deps []item
 	switch {
+	case p.ketFirst && it.e.level() > 0:
+		i := br.dir(it.e)
+		p.dir[it] = i
+		e1 := it.e.add(i, -1)
+		deps = append(deps, item{e1, it.f, it.m}, item{e1, it.f, it.m + 1})
+		p.flops += 3
+		if e1[i] > 0 {
+			e2 := e1.add(i, -1)
+			deps = append(deps, item{e2, it.f, it.m}, item{e2, it.f, it.m + 1})
+			p.flops += 5
+		}
+		if it.f[i] > 0 {
+			deps = append(deps, item{e1, it.f.add(i, -1), it.m + 1})
+			p.flops += 3
+		}
 	case it.f.level() > 0:
 		i := kr.dir(it.f)
 		p.dir[it] = i
 		f1 := it.f.add(i, -1)
-		deps = append(deps, item{it.e, f1, it.m}, item{it.e, f1, it.m + 1})
-		p.flops += 3
+		if p.unitKet {
+			deps = append(deps, item{it.e, f1, it.m + 1})
+			p.flops++
+		} else {
+			deps = append(deps, item{it.e, f1, it.m}, item{it.e, f1, it.m + 1})
+			p.flops += 3
+		}
 		if f1[i] > 0 {
 			f2 := f1.add(i, -1)
 			deps = append(deps, item{it.e, f2, it.m}, item{it.e, f2, it.m + 1})
