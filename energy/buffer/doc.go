@@ -4,7 +4,7 @@
 // geometry, and a relaxation or a finite-difference Hessian computes many
 // geometries of the same size one after another. Memory taken afresh from
 // the operating system must be faulted in and zeroed page by page (on the
-// 2-core test machine this cost a displaced aspirin point about 2 s of
+// 2-core test machine this cost a displaced aspirin point about 1 s of
 // its 26); a slice handed back and lent again is simply overwritten.
 //
 // A Pool belongs to whoever runs the calculations (a potential-energy
