@@ -1,6 +1,10 @@
 package buffer
 
-import "sync"
+import (
+	"sync"
+
+	"poise/energy/internal/hugepage"
+)
 
 // Pool keeps up to a fixed number of slices handed back by finished
 // calculations and lends them to later ones of about the same size. The
@@ -30,7 +34,9 @@ const (
 )
 
 // Get returns a slice of length n with unspecified contents: the smallest
-// kept one whose capacity lies between n and n + n/Slack, or a new one.
+// kept one whose capacity lies between n and n + n/Slack, or a new one,
+// advised onto transparent huge pages (package hugepage: large arrays
+// written once are faulted in several times faster).
 // When none fits, the kept slices larger than that are let go (they
 // belong to a larger calculation, such as a relaxation on all threads
 // before a Hessian shares them).
@@ -39,7 +45,7 @@ func (p *Pool) Get(n int) []float64 {
 		return nil
 	}
 	if p == nil {
-		return make([]float64, n)
+		return fresh(n, n)
 	}
 	hi := n + n/Slack
 	p.mu.Lock()
@@ -64,7 +70,14 @@ func (p *Pool) Get(n int) []float64 {
 	clear(p.free[len(kept):])
 	p.free = kept
 	p.mu.Unlock()
-	return make([]float64, n, n+n/headroom)
+	return fresh(n, n+n/headroom)
+}
+
+// fresh allocates a slice of length n and capacity c on huge pages.
+func fresh(n, c int) []float64 {
+	b := make([]float64, n, c)
+	hugepage.Advise(b[:c])
+	return b
 }
 
 // Put hands b back for a later Get; the caller must not use it again. When

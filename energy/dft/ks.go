@@ -9,7 +9,6 @@ import (
 	"poise/energy/buffer"
 	"poise/energy/grid"
 	"poise/energy/integral"
-	"poise/energy/internal/hugepage"
 	"poise/energy/internal/kernel"
 	"poise/energy/xc"
 )
@@ -62,7 +61,7 @@ type Potential struct {
 	// slab holds the stored values of all cached batches, batch bi from
 	// slabOff[bi] with room for all functions of its shells: the values
 	// are evaluated there in place, and it is one allocation that can be
-	// backed by huge pages (package hugepage).
+	// backed by huge pages (buffer.Pool.Get).
 	slab    []float64
 	slabOff []int
 	// Scratch kept from one Build to the next: the potential blocks of one
@@ -307,8 +306,7 @@ func (p *Potential) prepareCache() {
 		total += int(nv) * m * (bt.End - bt.Start)
 	}
 	if total > 0 {
-		p.slab = p.Buffers.Get(total)
-		hugepage.Advise(p.slab)
+		p.slab = p.Buffers.Get(total) // on huge pages (buffer.Pool.Get)
 	}
 }
 

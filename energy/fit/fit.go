@@ -12,7 +12,6 @@ import (
 
 	"poise/energy/buffer"
 	"poise/energy/integral"
-	"poise/energy/internal/hugepage"
 	"poise/energy/internal/kernel"
 )
 
@@ -125,11 +124,10 @@ func (f *Fit) threeCentre(ctx context.Context) ([]float64, error) {
 	// chunk fills a pair-major buffer (contiguous writes) and transposes
 	// it into the auxiliary-major result.
 	// Every element is written below (each chunk copies whole pair ranges
-	// of every auxiliary row), so lent memory needs no clearing.
+	// of every auxiliary row), so lent memory needs no clearing; new
+	// memory comes on huge pages, which make the first touch of these
+	// hundreds of MiB (a large molecule's fit) cheaper.
 	out := f.buffers.Get(f.naux * f.npair)
-	// Written once, in shell order: huge pages make the first touch of
-	// these hundreds of MiB (a large molecule's fit) cheaper.
-	hugepage.Advise(out)
 	type work struct {
 		w         *integral.ThreeCentreWorkspace
 		local, tr []float64
