@@ -56,6 +56,10 @@ type eriPrim struct {
 	p    [3]float64 // P = (αA+βB)/ζ
 	pa   [3]float64 // P − A
 	k    float64    // c_α c_β exp(−αβ/ζ·AB²)/ζ · √2 π^{5/4}
+	// kf = k·π^{1/4}/√(2ζ) = c_α c_β exp(−αβ/ζ·AB²)(π/ζ)^{3/2}, the
+	// primitive product's charge: far from each other (asymptotic Boys
+	// function) two products interact as kf_p·kf_q/|PQ| (F_0 term).
+	kf float64
 	// bnd = Q·(4/π)^{1/4}ζ^{1/4} with Q the charge bound of
 	// eriPrimThreshold: bnd_p·bnd_q bounds the primitive quartet's
 	// contribution to any integral (see newERIPair).
@@ -225,6 +229,7 @@ func newERIPair(b *Basis, i, j int) eriPair {
 				continue
 			}
 			pr.k = c * kab / z * pre
+			pr.kf = pr.k * math.Pow(math.Pi, 0.25) / math.Sqrt(2*z)
 			// The Coulomb interaction of two charge distributions with
 			// charges Q_p, Q_q and exponents ζ, η is taken to be at most
 			// Q_p Q_q·2√(min(ζ,η)/π): each charge times the peak potential

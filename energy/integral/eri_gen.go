@@ -45,10 +45,11 @@ func eriGen0000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -56,7 +57,8 @@ func eriGen0000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				c := &eriBoysTab[k]
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
 			}
 			a0 += f0
 		}
@@ -84,10 +86,11 @@ func eriGen1000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -96,8 +99,9 @@ func eriGen1000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 			}
 			rz := q.zeta * ozn
@@ -137,10 +141,11 @@ func eriGen1010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -150,8 +155,9 @@ func eriGen1010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 			}
@@ -224,10 +230,11 @@ func eriGen1100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -237,8 +244,9 @@ func eriGen1100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 			}
@@ -314,10 +322,11 @@ func eriGen1110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -328,8 +337,9 @@ func eriGen1110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 				f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -504,10 +514,11 @@ func eriGen1111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -526,8 +537,9 @@ func eriGen1111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f3 *= pref
 				f4 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -963,10 +975,11 @@ func eriGen2000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -976,8 +989,9 @@ func eriGen2000(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 			}
@@ -1035,10 +1049,11 @@ func eriGen2010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -1049,8 +1064,9 @@ func eriGen2010(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 				f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -1168,10 +1184,11 @@ func eriGen2011(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -1190,8 +1207,9 @@ func eriGen2011(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f3 *= pref
 				f4 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -1459,10 +1477,11 @@ func eriGen2020(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -1481,8 +1500,9 @@ func eriGen2020(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f3 *= pref
 				f4 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -1711,10 +1731,11 @@ func eriGen2100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -1725,8 +1746,9 @@ func eriGen2100(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 				f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -1845,10 +1867,11 @@ func eriGen2110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -1867,8 +1890,9 @@ func eriGen2110(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f3 *= pref
 				f4 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -2167,10 +2191,11 @@ func eriGen2111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -2191,8 +2216,9 @@ func eriGen2111(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f4 *= pref
 				f5 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -2981,10 +3007,11 @@ func eriGen2120(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -3005,8 +3032,9 @@ func eriGen2120(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f4 *= pref
 				f5 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -3636,10 +3664,11 @@ func eriGen2121(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5, f6 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -3662,8 +3691,9 @@ func eriGen2121(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f5 *= pref
 				f6 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -5168,10 +5198,11 @@ func eriGen2200(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -5190,8 +5221,9 @@ func eriGen2200(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f3 *= pref
 				f4 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -5434,10 +5466,11 @@ func eriGen2210(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -5458,8 +5491,9 @@ func eriGen2210(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f4 *= pref
 				f5 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -6130,10 +6164,11 @@ func eriGen2211(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5, f6 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -6156,8 +6191,9 @@ func eriGen2211(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f5 *= pref
 				f6 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -8032,10 +8068,11 @@ func eriGen2220(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5, f6 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -8058,8 +8095,9 @@ func eriGen2220(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f5 *= pref
 				f6 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -9493,10 +9531,11 @@ func eriGen2221(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5, f6, f7 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -9521,8 +9560,9 @@ func eriGen2221(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f6 *= pref
 				f7 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2
@@ -13077,10 +13117,11 @@ func eriGen2222(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 			}
 			ozn := 1 / (p.zeta + q.zeta)
 			pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-			t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-			pref := p.k * q.k * math.Sqrt(ozn)
+			r2 := pqx*pqx + pqy*pqy + pqz*pqz
+			t := p.zeta * q.zeta * ozn * r2
 			var f0, f1, f2, f3, f4, f5, f6, f7, f8 float64
 			if t < eriBoysTMax {
+				pref := p.k * q.k * math.Sqrt(ozn)
 				k := int(t*eriBoysInvStep + 0.5)
 				d := t - float64(k)*eriBoysStep
 				d2 := d * d
@@ -13107,8 +13148,9 @@ func eriGen2222(w *ERIWorkspace, bra, ket *eriPair) []float64 {
 				f7 *= pref
 				f8 *= pref
 			} else {
-				f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-				h := 0.5 / t
+				ir := 1 / math.Sqrt(r2)
+				f0 = p.kf * q.kf * ir
+				h := (p.oo2z + q.oo2z) * (ir * ir)
 				f1 = h * f0
 				f2 = 3 * h * f1
 				f3 = 5 * h * f2

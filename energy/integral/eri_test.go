@@ -596,12 +596,19 @@ func TestERIGeneratedMatchesGeneric(t *testing.T) {
 		if eriClass(la, lb, lc, ld) != cls {
 			t.Fatalf("class index %d does not decode", cls)
 		}
-		for _, box := range []float64{0.5, 4, 12} {
+		// The boxes of side 0.5 to 12 bohr mix the Taylor and the
+		// asymptotic branch of the Boys function; with the ket 40 bohr
+		// away (box −12) every primitive quartet is asymptotic
+		// (t ≥ ρ_min·35² ≥ 0.075·35² > eriBoysTMax).
+		for _, box := range []float64{0.5, 4, 12, -12} {
 			var shells []basis.Shell
-			for _, l := range []int{la, lb, lc, ld} {
+			for x, l := range []int{la, lb, lc, ld} {
 				s := eriRandomShell(rng, l, false)
 				for k := 0; k < 3; k++ {
-					s.Center[k] *= box / 3
+					s.Center[k] *= math.Abs(box) / 3
+				}
+				if box < 0 && x >= 2 {
+					s.Center[0] += 40
 				}
 				shells = append(shells, s)
 			}

@@ -298,7 +298,7 @@ func emitPrimQuantities(w *bytes.Buffer, u map[string]bool, L int) {
 	fmt.Fprintf(w, "pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]\n")
 	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)\n")
 	fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
-	genBoys(w, L)
+	genBoys(w, L, false)
 	if needRz {
 		fmt.Fprintf(w, "rz := q.zeta * ozn\n")
 	}

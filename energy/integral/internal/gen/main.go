@@ -370,9 +370,9 @@ func genClass(w *bytes.Buffer, la, lb, lc, ld int) {
 	fmt.Fprintf(w, "if p.bnd*q.bnd < eriQuartetThreshold {\nbreak\n}\n")
 	fmt.Fprintf(w, "ozn := 1 / (p.zeta + q.zeta)\n")
 	fmt.Fprintf(w, "pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]\n")
-	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)\n")
-	fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
-	genBoys(w, L)
+	fmt.Fprintf(w, "r2 := pqx*pqx + pqy*pqy + pqz*pqz\n")
+	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * r2\n")
+	genBoys(w, L, true)
 	if needRz {
 		fmt.Fprintf(w, "rz := q.zeta * ozn\n")
 	}
@@ -428,14 +428,23 @@ func accName(i, n int) string {
 
 var letters = []string{"s", "p", "d", "f", "g", "h"}
 
-// genBoys emits f0 … fL = pref·F_m(t).
-func genBoys(w *bytes.Buffer, L int) {
+// genBoys emits f0 … fL = pref·F_m(t). With far false, pref must be
+// defined before. With far true (energy integrals), pref is formed on the
+// Taylor branch only, and the asymptotic branch (t ≥ eriBoysTMax, the
+// charge distributions far apart) needs neither pref nor a division by t:
+// pref·F_0 = ½√π p.k q.k/(√(ζη)·|PQ|) = p.kf·q.kf/|PQ| and
+// 1/(2t) = (1/(2ζ) + 1/(2η))/|PQ|² with r2 = |PQ|², which saves a square
+// root and a division on every far primitive quartet.
+func genBoys(w *bytes.Buffer, L int, far bool) {
 	fs := make([]string, L+1)
 	for m := range fs {
 		fs[m] = fmt.Sprintf("f%d", m)
 	}
 	fmt.Fprintf(w, "var %s float64\n", strings.Join(fs, ", "))
 	fmt.Fprintf(w, "if t < eriBoysTMax {\n")
+	if far {
+		fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
+	}
 	fmt.Fprintf(w, "k := int(t*eriBoysInvStep + 0.5)\n")
 	fmt.Fprintf(w, "d := t - float64(k)*eriBoysStep\n")
 	// Estrin's scheme: shorter dependency chains than Horner's rule.
@@ -472,9 +481,19 @@ func genBoys(w *bytes.Buffer, L int) {
 		}
 	}
 	fmt.Fprintf(w, "} else {\n")
-	fmt.Fprintf(w, "f0 = pref * 0.5 * math.Sqrt(math.Pi/t)\n")
+	switch {
+	case far:
+		fmt.Fprintf(w, "ir := 1 / math.Sqrt(r2)\n")
+		fmt.Fprintf(w, "f0 = p.kf * q.kf * ir\n")
+	default:
+		fmt.Fprintf(w, "f0 = pref * 0.5 * math.Sqrt(math.Pi/t)\n")
+	}
 	if L > 0 {
-		fmt.Fprintf(w, "h := 0.5 / t\n")
+		if far {
+			fmt.Fprintf(w, "h := (p.oo2z + q.oo2z) * (ir * ir)\n")
+		} else {
+			fmt.Fprintf(w, "h := 0.5 / t\n")
+		}
 		for m := 0; m < L; m++ {
 			fmt.Fprintf(w, "f%d = %s\n", m+1, mulInt(2*m+1, fmt.Sprintf("h*f%d", m)))
 		}
