@@ -26,6 +26,10 @@ const memoryBudget = 2 << 30
 // alkaneSizes are the chain lengths n of CnH2n+2 whose Fock build is timed.
 var alkaneSizes = []int{4, 6, 8, 12, 16}
 
+// alkaneBuilds is the number of Fock builds timed per alkane (in
+// interleaved rounds); the fastest counts.
+const alkaneBuilds = 3
+
 // goal is the target of a workload: Value at most (or at least) Limit.
 type goal struct {
 	Limit  float64 `json:"limit"`
@@ -340,15 +344,25 @@ func gradientRatio(ctx context.Context, e env, file, method string) (measurement
 // alkaneExponent times an integral-direct Coulomb and exchange build at
 // HF/6-31G* for each alkane (density after one SCF iteration from the
 // atomic guess) and fits t ∝ N_bf^k.
+//
+// Every size is built alkaneBuilds times, in interleaved rounds (each
+// round builds every size once), and the fastest build of each size
+// counts. On a shared machine a slow spell then slows one build of every
+// size rather than all builds of one size, which would tilt the fit; the
+// same number of builds per size keeps the minimum equally biased.
 func alkaneExponent(ctx context.Context, e env) (measurement, error) {
 	set, err := basis.Load("6-31g*")
 	if err != nil {
 		return measurement{}, err
 	}
-	var nbf, secs, cpu []float64
-	var parts []string
+	type size struct {
+		n, nbf int
+		jk     *scf.JKBuilder
+		dens   [][]float64
+	}
 	start := time.Now()
 	iters := 0
+	var sizes []size
 	for _, n := range alkaneSizes {
 		mol, err := molecule.ParseXYZ(fmt.Sprintf("C%dH%d", n, 2*n+2), []byte(alkaneXYZ(n)))
 		if err != nil {
@@ -372,21 +386,28 @@ func alkaneExponent(ctx context.Context, e env) (measurement, error) {
 		if err != nil {
 			return measurement{}, err
 		}
-		// The fastest of up to 3 builds (fewer when one takes over 2 s): the
-		// small sizes, quick and most exposed to noise, get repeats.
-		t, tc := math.Inf(1), math.Inf(1)
-		for rep, spent := 0, 0.0; rep < 3 && spent < 2; rep++ {
+		sizes = append(sizes, size{n: n, nbf: res.NBF, jk: jk, dens: res.Density})
+	}
+	secs := make([]float64, len(sizes))
+	cpu := make([]float64, len(sizes))
+	for i := range secs {
+		secs[i], cpu[i] = math.Inf(1), math.Inf(1)
+	}
+	for rep := 0; rep < alkaneBuilds; rep++ {
+		for i, sz := range sizes {
 			t0, c0 := time.Now(), processCPUSeconds()
-			if _, _, err := jk.Build(ctx, res.Density); err != nil {
+			if _, _, err := sz.jk.Build(ctx, sz.dens); err != nil {
 				return measurement{}, err
 			}
-			dt := time.Since(t0).Seconds()
-			t, tc, spent = math.Min(t, dt), math.Min(tc, processCPUSeconds()-c0), spent+dt
+			secs[i] = math.Min(secs[i], time.Since(t0).Seconds())
+			cpu[i] = math.Min(cpu[i], processCPUSeconds()-c0)
 		}
-		cpu = append(cpu, tc)
-		nbf = append(nbf, float64(res.NBF))
-		secs = append(secs, t)
-		parts = append(parts, fmt.Sprintf("n=%d %d bf %.2fs", n, res.NBF, t))
+	}
+	nbf := make([]float64, len(sizes))
+	var parts []string
+	for i, sz := range sizes {
+		nbf[i] = float64(sz.nbf)
+		parts = append(parts, fmt.Sprintf("n=%d %d bf %.2fs", sz.n, sz.nbf, secs[i]))
 	}
 	k, _, err := fitPowerLaw(nbf, secs)
 	if err != nil {
