@@ -151,6 +151,20 @@ func NewERI(b *Basis) *ERIEngine {
 			e.pairs[i*(i+1)/2+j] = p
 		}
 	}
+	// One slab for the primitive products of all pairs, in pair order: a
+	// Fock build runs through the ket pairs in that order, and contiguous
+	// data lets the hardware prefetch it once it no longer fits in cache.
+	nprim := 0
+	for k := range e.pairs {
+		nprim += len(e.pairs[k].prims)
+	}
+	slab := make([]eriPrim, 0, nprim)
+	for k := range e.pairs {
+		p := &e.pairs[k]
+		start := len(slab)
+		slab = append(slab, p.prims...)
+		p.prims = slab[start:len(slab):len(slab)]
+	}
 	e.schwarz = make([]float64, e.nshell*e.nshell)
 	e.computeSchwarz()
 	return e
