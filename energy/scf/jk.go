@@ -58,8 +58,9 @@ const (
 const fullRebuildEvery = 8
 
 // waveBytes bounds the memory of the per-chunk Coulomb and exchange buffers
-// held at once by a Fock build; an eighth of the memory budget when that is
-// less (at least two buffer sets per thread are kept in any case).
+// held at once by a Fock build (the ring of buildFrom); an eighth of the
+// memory budget when that is less (at least two buffer sets per thread are
+// kept in any case).
 const waveBytes = 64 << 20
 
 // jkBuilder forms Coulomb and exchange matrices from densities, keeping the
@@ -574,16 +575,15 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 	// One buffer set per chunk in flight; chunks are reduced in index order.
 	nc := len(jk.chunks) - 1
 	// Chunks in flight at once: as many buffer sets as fit in
-	// waveBytes (at least 2·threads), so that workers rarely wait for the
-	// in-order reduction. The grouping never changes the result.
-	wave := max(2*jk.threads, int(jk.waveBytes/int64(8*(np+n*n*nk)+8)))
-	if wave > nc {
-		wave = nc
+	// waveBytes (at least 2·threads).
+	nbuf := max(2*jk.threads, int(jk.waveBytes/int64(8*(np+n*n*nk)+8)))
+	if nbuf > nc {
+		nbuf = nc
 	}
 	// Buffers are kept between builds (an SCF builds once per iteration,
 	// never concurrently) so that their pages are touched only once.
-	if len(jk.pool) < wave || (len(jk.pool) > 0 && len(jk.pool[0].k) != nk) {
-		jk.pool = make([]jkBuffers, wave)
+	if len(jk.pool) < nbuf || (len(jk.pool) > 0 && len(jk.pool[0].k) != nk) {
+		jk.pool = make([]jkBuffers, nbuf)
 		for i := range jk.pool {
 			jk.pool[i].j = make([]float64, np)
 			jk.pool[i].k = make([][]float64, nk)
@@ -598,67 +598,83 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 	for s := range K {
 		K[s] = make([]float64, n*n)
 	}
-	for start := 0; start < nc; start += wave {
-		end := start + wave
-		if end > nc {
-			end = nc
+	// The buffer sets form a ring: chunk c accumulates into pool[c mod
+	// nbuf] and may start once chunk c − nbuf has been added to the sums.
+	// Chunks are added in index order, each element by one thread at a
+	// time, by whichever worker finds the next chunk due finished; the
+	// others go on computing. So the sums do not depend on the number of
+	// threads or on which chunk finishes first, and no worker waits for a
+	// whole group of chunks to finish (a small ring, under a small memory
+	// budget, costs little).
+	var (
+		mu        sync.Mutex
+		cond      = sync.NewCond(&mu)
+		next      int // next chunk to start
+		committed int // chunks added to the sums
+		reducing  bool
+		done      = make([]bool, nbuf)
+		wg        sync.WaitGroup
+	)
+	add := func(bf *jkBuffers) {
+		for i, v := range bf.j {
+			Jp[i] += v
 		}
-		var wg sync.WaitGroup
-		var next = start
-		var mu sync.Mutex
-		workers := jk.threads
-		if workers > end-start {
-			workers = end - start
+		for s := range bf.k {
+			ks := K[s]
+			for i, v := range bf.k[s] {
+				ks[i] += v
+			}
 		}
-		for t := 0; t < workers; t++ {
-			wg.Add(1)
-			go func() {
-				defer wg.Done()
-				var w *integral.ERIWorkspace
-				if !jk.InCore() {
-					w = jk.eri.NewWorkspace()
+	}
+	workers := min(jk.threads, nc)
+	for t := 0; t < workers; t++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var w *integral.ERIWorkspace
+			if !jk.InCore() {
+				w = jk.eri.NewWorkspace()
+			}
+			mu.Lock()
+			defer mu.Unlock()
+			for {
+				for next < nc && next >= committed+nbuf && ctx.Err() == nil {
+					cond.Wait()
 				}
-				for ctx.Err() == nil {
-					mu.Lock()
-					c := next
-					next++
+				if next >= nc || ctx.Err() != nil {
+					return
+				}
+				c := next
+				next++
+				mu.Unlock()
+				bf := &pool[c%nbuf]
+				clear(bf.j)
+				for _, k := range bf.k {
+					clear(k)
+				}
+				jk.contractChunk(w, c, dpair, dens[:nk], dmax, bf.j, bf.k)
+				mu.Lock()
+				done[c%nbuf] = true
+				if reducing {
+					continue // the worker adding chunks will take this one
+				}
+				reducing = true
+				for committed < nc && done[committed%nbuf] {
+					b := committed % nbuf
 					mu.Unlock()
-					if c >= end {
-						return
-					}
-					bf := &pool[c-start]
-					clear(bf.j)
-					for _, k := range bf.k {
-						clear(k)
-					}
-					jk.contractChunk(w, c, dpair, dens[:nk], dmax, bf.j, bf.k)
+					add(&pool[b])
+					mu.Lock()
+					done[b] = false
+					committed++
+					cond.Broadcast()
 				}
-			}()
-		}
-		wg.Wait()
-		if err := ctx.Err(); err != nil {
-			return nil, nil, err
-		}
-		// Reduce in chunk order, the elements split among the threads.
-		jk.parallelRange(np, func(lo, hi int) {
-			for c := start; c < end; c++ {
-				bf := &pool[c-start]
-				for i, v := range bf.j[lo:hi] {
-					Jp[lo+i] += v
-				}
+				reducing = false
 			}
-		})
-		jk.parallelRange(n*n, func(lo, hi int) {
-			for c := start; c < end; c++ {
-				bf := &pool[c-start]
-				for s := range bf.k {
-					ks := K[s][lo:hi]
-					for i, v := range bf.k[s][lo:hi] {
-						ks[i] += v
-					}
-				}
-			}
-		})
+		}()
+	}
+	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return nil, nil, err
 	}
 	J = make([]float64, n*n)
 	jk.unpackPairs(Jp, J)
@@ -692,26 +708,6 @@ func (jk *jkBuilder) pairMax(dtot []float64, dens [][]float64) []float64 {
 		}
 	}
 	return out
-}
-
-// parallelRange calls fn on up to jk.threads disjoint ranges covering
-// [0, n), concurrently.
-func (jk *jkBuilder) parallelRange(n int, fn func(lo, hi int)) {
-	parts := min(jk.threads, max(1, n/4096))
-	if parts <= 1 {
-		fn(0, n)
-		return
-	}
-	var wg sync.WaitGroup
-	for p := 0; p < parts; p++ {
-		lo, hi := p*n/parts, (p+1)*n/parts
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			fn(lo, hi)
-		}()
-	}
-	wg.Wait()
 }
 
 // symmetrize replaces m by (m + mᵀ)/2.
