@@ -600,12 +600,12 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 	}
 	// The buffer sets form a ring: chunk c accumulates into pool[c mod
 	// nbuf] and may start once chunk c − nbuf has been added to the sums.
-	// Chunks are added in index order, each element by one thread at a
-	// time, by whichever worker finds the next chunk due finished; the
-	// others go on computing. So the sums do not depend on the number of
-	// threads or on which chunk finishes first, and no worker waits for a
-	// whole group of chunks to finish (a small ring, under a small memory
-	// budget, costs little).
+	// Chunks are added in index order, by one worker at a time: whichever
+	// finishes a chunk and finds the next one due done adds it (and any
+	// finished ones after it) while the others go on computing. So the
+	// sums do not depend on the number of threads or on which chunk
+	// finishes first, and no worker waits for a whole group of chunks (a
+	// small ring, under a small memory budget, costs little).
 	var (
 		mu        sync.Mutex
 		cond      = sync.NewCond(&mu)
