@@ -2,10 +2,12 @@ package scf
 
 import (
 	"context"
+	"errors"
 	"math"
 	"math/rand"
 	"strings"
 	"testing"
+	"time"
 
 	"poise/energy/basis"
 	"poise/energy/integral"
@@ -146,12 +148,13 @@ func TestJKScreeningAndThreads(t *testing.T) {
 	}
 	want := e2(Jr, Kr[0])
 	// In core, semi-direct with about 40 % of the integrals stored, and
-	// direct: the same numbers, bit for bit, with 1 and 2 threads.
+	// direct: the same numbers, bit for bit, with 1, 2 and 3 threads (the
+	// direct build with the smallest ring of chunk buffers, 2 per thread).
 	nq := int64(len(ref.quartets) / 2)
 	semi := 16 * (nq + 1 + 4*ref.totalWords/10)
 	var first []float64
 	for _, mem := range []int64{1 << 30, semi, 1} {
-		for _, threads := range []int{1, 2} {
+		for _, threads := range []int{1, 2, 3} {
 			jk, err := newJKBuilderConfig(context.Background(), b, jkConfig{threads: threads, memoryBytes: mem, farField: true, minSemiDirectWords: 1})
 			if err != nil {
 				t.Fatal(err)
@@ -182,6 +185,52 @@ func TestJKScreeningAndThreads(t *testing.T) {
 					t.Fatalf("stored fraction %.2f, %d threads: element %d differs from the in-core build with 1 thread: %v, %v", jk.StoredFraction(), threads, i, all[i], first[i])
 				}
 			}
+		}
+	}
+}
+
+// TestJKCancelled cancels direct builds (the smallest ring of chunk
+// buffers) at different moments: each returns the context's error instead
+// of a result, and none hangs.
+func TestJKCancelled(t *testing.T) {
+	m := mol(t, butaneAnti(t), false, 0, 0)
+	set, err := basis.Load("3-21g")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sh, err := set.Shells(m, basis.Default)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := integral.NewBasis(sh)
+	n := b.NBF
+	d := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		d[i*n+i] = 1
+	}
+	for _, after := range []time.Duration{0, time.Millisecond, 5 * time.Millisecond} {
+		jk, err := newJKBuilder(context.Background(), b, 3, 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		if after == 0 {
+			cancel()
+		} else {
+			time.AfterFunc(after, cancel)
+		}
+		J, _, err := jk.build(ctx, [][]float64{d}, true)
+		cancel()
+		if err == nil {
+			// A build may finish before a late cancellation; then it must
+			// be complete.
+			if after == 0 || J == nil {
+				t.Errorf("cancelled after %v: no error", after)
+			}
+			continue
+		}
+		if !errors.Is(err, context.Canceled) || J != nil {
+			t.Errorf("cancelled after %v: J %v, error %v", after, J != nil, err)
 		}
 	}
 }
