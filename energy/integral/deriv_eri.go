@@ -88,6 +88,7 @@ type derivPrim struct {
 	zeta, oo2z float64
 	p, pa      [3]float64
 	k          float64 // c_α c_β exp(−αβ/ζ·AB²)/ζ · √2 π^{5/4}, as in eriPrim
+	kf         float64 // the charge k·π^{1/4}/√(2ζ), as in eriPrim
 	ta, tb     float64 // 2α, 2β of the first and second shell
 	// bnd bounds the primitive pair's contribution to any derivative
 	// integral together with another pair's bnd (see newDerivPair).
@@ -147,6 +148,7 @@ func newDerivPair(b *Basis, i, j int) derivPair {
 				continue
 			}
 			pr.k = c * kab / z * pre
+			pr.kf = primCharge(pr.k, z)
 			// As in the energy engine: the Coulomb interaction of two
 			// distributions bounded by Q_p, Q_q is at most
 			// Q_p Q_q (2/π)^{1/2}(ζη)^{1/4}.

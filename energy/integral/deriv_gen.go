@@ -60,10 +60,11 @@ func derivGen0000(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -72,8 +73,9 @@ func derivGen0000(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 					f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 				}
 				rz := q.zeta * ozn
@@ -181,10 +183,11 @@ func derivGen1000(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -194,8 +197,9 @@ func derivGen1000(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 				}
@@ -399,10 +403,11 @@ func derivGen1010(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -413,8 +418,9 @@ func derivGen1010(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 					f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -904,10 +910,11 @@ func derivGen1100(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -918,8 +925,9 @@ func derivGen1100(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 					f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -1421,10 +1429,11 @@ func derivGen1110(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -1443,8 +1452,9 @@ func derivGen1110(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -2740,10 +2750,11 @@ func derivGen1111(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -2764,8 +2775,9 @@ func derivGen1111(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -6901,10 +6913,11 @@ func derivGen2000(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -6915,8 +6928,9 @@ func derivGen2000(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 					f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -7258,10 +7272,11 @@ func derivGen2010(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -7280,8 +7295,9 @@ func derivGen2010(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -8130,10 +8146,11 @@ func derivGen2011(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -8154,8 +8171,9 @@ func derivGen2011(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -10845,10 +10863,11 @@ func derivGen2020(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -10869,8 +10888,9 @@ func derivGen2020(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -12581,10 +12601,11 @@ func derivGen2100(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -12603,8 +12624,9 @@ func derivGen2100(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -13463,10 +13485,11 @@ func derivGen2110(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -13487,8 +13510,9 @@ func derivGen2110(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -15886,10 +15910,11 @@ func derivGen2111(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -15912,8 +15937,9 @@ func derivGen2111(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -23752,10 +23778,11 @@ func derivGen2120(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -23778,8 +23805,9 @@ func derivGen2120(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -28629,10 +28657,11 @@ func derivGen2121(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -28657,8 +28686,9 @@ func derivGen2121(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f6 *= pref
 					f7 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -43642,10 +43672,11 @@ func derivGen2200(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -43666,8 +43697,9 @@ func derivGen2200(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -45553,10 +45585,11 @@ func derivGen2210(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -45579,8 +45612,9 @@ func derivGen2210(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -50907,10 +50941,11 @@ func derivGen2211(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -50935,8 +50970,9 @@ func derivGen2211(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f6 *= pref
 					f7 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -68284,10 +68320,11 @@ func derivGen2220(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -68312,8 +68349,9 @@ func derivGen2220(dw *derivWork, bra, ket *derivPair, g []float64, thr float64) 
 					f6 *= pref
 					f7 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -79077,10 +79115,11 @@ func deriv3Gen000(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -79089,8 +79128,9 @@ func deriv3Gen000(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f0 = pref * ((c[0] + d*c[1]) + d2*(c[2]+d*c[3]) + d4*((c[4]+d*c[5])+d2*(c[6]+d*c[7])))
 					f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 				}
 				rz := q.zeta * ozn
@@ -79152,10 +79192,11 @@ func deriv3Gen001(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -79165,8 +79206,9 @@ func deriv3Gen001(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 				}
@@ -79278,10 +79320,11 @@ func deriv3Gen002(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -79292,8 +79335,9 @@ func deriv3Gen002(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 					f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -79436,10 +79480,11 @@ func deriv3Gen003(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -79458,8 +79503,9 @@ func deriv3Gen003(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -79667,10 +79713,11 @@ func deriv3Gen004(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -79691,8 +79738,9 @@ func deriv3Gen004(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -79983,10 +80031,11 @@ func deriv3Gen100(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -79996,8 +80045,9 @@ func deriv3Gen100(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f1 = pref * ((c[8] + d*c[9]) + d2*(c[10]+d*c[11]) + d4*((c[12]+d*c[13])+d2*(c[14]+d*c[15])))
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 				}
@@ -80102,10 +80152,11 @@ func deriv3Gen101(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -80116,8 +80167,9 @@ func deriv3Gen101(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 					f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -80350,10 +80402,11 @@ func deriv3Gen102(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -80372,8 +80425,9 @@ func deriv3Gen102(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -80680,10 +80734,11 @@ func deriv3Gen103(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -80704,8 +80759,9 @@ func deriv3Gen103(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -81217,10 +81273,11 @@ func deriv3Gen104(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -81243,8 +81300,9 @@ func deriv3Gen104(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -81894,10 +81952,11 @@ func deriv3Gen110(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -81908,8 +81967,9 @@ func deriv3Gen110(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 					f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -82159,10 +82219,11 @@ func deriv3Gen111(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -82181,8 +82242,9 @@ func deriv3Gen111(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -82844,10 +82906,11 @@ func deriv3Gen112(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -82868,8 +82931,9 @@ func deriv3Gen112(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -83546,10 +83610,11 @@ func deriv3Gen113(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -83572,8 +83637,9 @@ func deriv3Gen113(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -84687,10 +84753,11 @@ func deriv3Gen114(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -84715,8 +84782,9 @@ func deriv3Gen114(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f6 *= pref
 					f7 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -86193,10 +86261,11 @@ func deriv3Gen200(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -86207,8 +86276,9 @@ func deriv3Gen200(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f2 = pref * ((c[16] + d*c[17]) + d2*(c[18]+d*c[19]) + d4*((c[20]+d*c[21])+d2*(c[22]+d*c[23])))
 					f3 = pref * ((c[24] + d*c[25]) + d2*(c[26]+d*c[27]) + d4*((c[28]+d*c[29])+d2*(c[30]+d*c[31])))
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -86377,10 +86447,11 @@ func deriv3Gen201(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -86399,8 +86470,9 @@ func deriv3Gen201(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -86816,10 +86888,11 @@ func deriv3Gen202(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -86840,8 +86913,9 @@ func deriv3Gen202(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -87381,10 +87455,11 @@ func deriv3Gen203(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -87407,8 +87482,9 @@ func deriv3Gen203(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -88335,10 +88411,11 @@ func deriv3Gen204(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -88363,8 +88440,9 @@ func deriv3Gen204(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f6 *= pref
 					f7 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -89620,10 +89698,11 @@ func deriv3Gen210(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -89642,8 +89721,9 @@ func deriv3Gen210(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f3 *= pref
 					f4 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -90086,10 +90166,11 @@ func deriv3Gen211(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -90110,8 +90191,9 @@ func deriv3Gen211(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -91334,10 +91416,11 @@ func deriv3Gen212(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -91360,8 +91443,9 @@ func deriv3Gen212(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -92520,10 +92604,11 @@ func deriv3Gen213(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -92548,8 +92633,9 @@ func deriv3Gen213(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f6 *= pref
 					f7 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -94449,10 +94535,11 @@ func deriv3Gen214(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7, f8 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -94479,8 +94566,9 @@ func deriv3Gen214(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f7 *= pref
 					f8 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -97399,10 +97487,11 @@ func deriv3Gen220(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -97423,8 +97512,9 @@ func deriv3Gen220(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f4 *= pref
 					f5 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -98407,10 +98497,11 @@ func deriv3Gen221(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -98433,8 +98524,9 @@ func deriv3Gen221(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f5 *= pref
 					f6 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -101248,10 +101340,11 @@ func deriv3Gen222(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -101276,8 +101369,9 @@ func deriv3Gen222(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f6 *= pref
 					f7 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -103467,10 +103561,11 @@ func deriv3Gen223(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7, f8 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -103497,8 +103592,9 @@ func deriv3Gen223(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f7 *= pref
 					f8 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2
@@ -106931,10 +107027,11 @@ func deriv3Gen224(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 				}
 				ozn := 1 / (p.zeta + q.zeta)
 				pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]
-				t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)
-				pref := p.k * q.k * math.Sqrt(ozn)
+				r2 := pqx*pqx + pqy*pqy + pqz*pqz
+				t := p.zeta * q.zeta * ozn * r2
 				var f0, f1, f2, f3, f4, f5, f6, f7, f8, f9 float64
 				if t < eriBoysTMax {
+					pref := p.k * q.k * math.Sqrt(ozn)
 					k := int(t*eriBoysInvStep + 0.5)
 					d := t - float64(k)*eriBoysStep
 					d2 := d * d
@@ -106963,8 +107060,9 @@ func deriv3Gen224(bra, ket *derivPair, g []float64, thr float64) [9]float64 {
 					f8 *= pref
 					f9 *= pref
 				} else {
-					f0 = pref * 0.5 * math.Sqrt(math.Pi/t)
-					h := 0.5 / t
+					ir := 1 / math.Sqrt(r2)
+					f0 = p.kf * q.kf * ir
+					h := (p.oo2z + q.oo2z) * (ir * ir)
 					f1 = h * f0
 					f2 = 3 * h * f1
 					f3 = 5 * h * f2

@@ -13,7 +13,8 @@ import (
 // class (deriv_gen.go), its integrals and their contraction with a random
 // two-particle density, against the batched generic code on random shells
 // at short, medium and long range (the latter reaches the asymptotic
-// branch of the Boys function). Both are checked against libint2 in
+// branch of the Boys function) and with the ket far away (only that
+// branch). Both are checked against libint2 in
 // deriv_libint2_test.go; this test covers every generated class without
 // the library.
 func TestDerivGeneratedMatchesGeneric(t *testing.T) {
@@ -26,12 +27,18 @@ func TestDerivGeneratedMatchesGeneric(t *testing.T) {
 		}
 		count++
 		la, lb, lc, ld := cls/(n*n*n), cls/(n*n)%n, cls/n%n, cls%n
-		for _, box := range []float64{0.5, 4, 30} {
+		// Box −0.5: both pairs compact, the ket 40 bohr away, every
+		// primitive quartet in the asymptotic branch
+		// (t ≥ ρ_min·39² ≥ 0.075·39² > eriBoysTMax).
+		for _, box := range []float64{0.5, 4, 30, -0.5} {
 			var shells []basis.Shell
-			for _, l := range []int{la, lb, lc, ld} {
+			for x, l := range []int{la, lb, lc, ld} {
 				s := eriRandomShell(rng, l, false)
 				for k := 0; k < 3; k++ {
-					s.Center[k] *= box / 3
+					s.Center[k] *= math.Abs(box) / 3
+				}
+				if box < 0 && x >= 2 {
+					s.Center[0] += 40
 				}
 				shells = append(shells, s)
 			}

@@ -243,7 +243,7 @@ func newERIPair(b *Basis, i, j int) eriPair {
 				continue
 			}
 			pr.k = c * kab / z * pre
-			pr.kf = pr.k * math.Pow(math.Pi, 0.25) / math.Sqrt(2*z)
+			pr.kf = primCharge(pr.k, z)
 			// The Coulomb interaction of two charge distributions with
 			// charges Q_p, Q_q and exponents ζ, η is taken to be at most
 			// Q_p Q_q·2√(min(ζ,η)/π): each charge times the peak potential
@@ -263,6 +263,11 @@ func newERIPair(b *Basis, i, j int) eriPair {
 	}
 	return p
 }
+
+// primCharge is the charge kf = k·π^{1/4}/√(2ζ) = c_α c_β
+// exp(−αβ/ζ·AB²)(π/ζ)^{3/2} of a primitive product with prefactor k and
+// exponent ζ (see eriPrim).
+func primCharge(k, zeta float64) float64 { return k * math.Pow(math.Pi, 0.25) / math.Sqrt(2*zeta) }
 
 // pair returns the prepared data of shells i and j (either order).
 func (e *ERIEngine) pair(i, j int) *eriPair {

@@ -11,8 +11,8 @@ import "math"
 // with 8 terms (truncation below (h/2)^8/8! ≈ 1e−15 relative, since
 // F_{m+j} ≤ F_m), the coefficients F_{m+j}(t₀)(−1)^j/j! tabulated here from
 // Boys (boys.go). For t ≥ eriBoysTMax the generated code uses the
-// asymptotic forms F_0 = ½√(π/t), F_{m+1} = (2m+1)/(2t)·F_m (the energy
-// integrals in the form of eriPrim.kf, without dividing by t), which drop
+// asymptotic forms F_0 = ½√(π/t), F_{m+1} = (2m+1)/(2t)·F_m (in the form
+// of the primitive charges kf, without dividing by t), which drop
 // terms of order e^{−t}(2t)^{m−1}/((2m−1)!!F_0(t)) relative, below 1e−16
 // for m ≤ eriBoysMaxM at t = 60 (checked by TestERIBoysInline).
 

@@ -597,10 +597,10 @@ func TestERIGeneratedMatchesGeneric(t *testing.T) {
 			t.Fatalf("class index %d does not decode", cls)
 		}
 		// The boxes of side 0.5 to 12 bohr mix the Taylor and the
-		// asymptotic branch of the Boys function; with the ket 40 bohr
-		// away (box −12) every primitive quartet is asymptotic
-		// (t ≥ ρ_min·35² ≥ 0.075·35² > eriBoysTMax).
-		for _, box := range []float64{0.5, 4, 12, -12} {
+		// asymptotic branch of the Boys function; with both pairs compact
+		// and the ket 40 bohr away (box −0.5) every primitive quartet is
+		// asymptotic (t ≥ ρ_min·39² ≥ 0.075·39² > eriBoysTMax).
+		for _, box := range []float64{0.5, 4, 12, -0.5} {
 			var shells []basis.Shell
 			for x, l := range []int{la, lb, lc, ld} {
 				s := eriRandomShell(rng, l, false)

@@ -296,9 +296,9 @@ func emitPrimQuantities(w *bytes.Buffer, u map[string]bool, L int) {
 	needRe := u["wqx"] || u["wqy"] || u["wqz"] || u["roe"]
 	fmt.Fprintf(w, "ozn := 1 / (p.zeta + q.zeta)\n")
 	fmt.Fprintf(w, "pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]\n")
-	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * (pqx*pqx + pqy*pqy + pqz*pqz)\n")
-	fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
-	genBoys(w, L, false)
+	fmt.Fprintf(w, "r2 := pqx*pqx + pqy*pqy + pqz*pqz\n")
+	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * r2\n")
+	genBoys(w, L)
 	if needRz {
 		fmt.Fprintf(w, "rz := q.zeta * ozn\n")
 	}

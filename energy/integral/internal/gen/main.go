@@ -364,48 +364,9 @@ func genClass(w *bytes.Buffer, la, lb, lc, ld int) {
 			fmt.Fprintf(w, "pa%s := p.pa[%d]\n", axis[i], i)
 		}
 	}
-	needRz := u["wpx"] || u["wpy"] || u["wpz"] || u["roz"]
-	needRe := u["wqx"] || u["wqy"] || u["wqz"] || u["roe"]
 	fmt.Fprintf(w, "for qi := range ket.prims {\nq := &ket.prims[qi]\n")
 	fmt.Fprintf(w, "if p.bnd*q.bnd < eriQuartetThreshold {\nbreak\n}\n")
-	fmt.Fprintf(w, "ozn := 1 / (p.zeta + q.zeta)\n")
-	fmt.Fprintf(w, "pqx, pqy, pqz := p.p[0]-q.p[0], p.p[1]-q.p[1], p.p[2]-q.p[2]\n")
-	fmt.Fprintf(w, "r2 := pqx*pqx + pqy*pqy + pqz*pqz\n")
-	fmt.Fprintf(w, "t := p.zeta * q.zeta * ozn * r2\n")
-	genBoys(w, L, true)
-	if needRz {
-		fmt.Fprintf(w, "rz := q.zeta * ozn\n")
-	}
-	if needRe {
-		fmt.Fprintf(w, "re := p.zeta * ozn\n")
-	}
-	for i := 0; i < 3; i++ {
-		pq := "pq" + axis[i]
-		if u["wp"+axis[i]] {
-			fmt.Fprintf(w, "wp%s := -rz * %s\n", axis[i], pq)
-		}
-		if u["wq"+axis[i]] {
-			fmt.Fprintf(w, "wq%s := re * %s\n", axis[i], pq)
-		}
-		if u["qc"+axis[i]] {
-			fmt.Fprintf(w, "qc%s := q.pa[%d]\n", axis[i], i)
-		}
-	}
-	if u["oo2z"] {
-		fmt.Fprintf(w, "oo2z := p.oo2z\n")
-	}
-	if u["roz"] {
-		fmt.Fprintf(w, "roz := rz * p.oo2z\n")
-	}
-	if u["oo2e"] {
-		fmt.Fprintf(w, "oo2e := q.oo2z\n")
-	}
-	if u["roe"] {
-		fmt.Fprintf(w, "roe := re * q.oo2z\n")
-	}
-	if u["oo2zn"] {
-		fmt.Fprintf(w, "oo2zn := 0.5 * ozn\n")
-	}
+	emitPrimQuantities(w, u, L)
 	w.Write(body.buf.Bytes())
 	fmt.Fprintf(w, "}\n}\n")
 
@@ -428,23 +389,20 @@ func accName(i, n int) string {
 
 var letters = []string{"s", "p", "d", "f", "g", "h"}
 
-// genBoys emits f0 … fL = pref·F_m(t). With far false, pref must be
-// defined before. With far true (energy integrals), pref is formed on the
-// Taylor branch only, and the asymptotic branch (t ≥ eriBoysTMax, the
-// charge distributions far apart) needs neither pref nor a division by t:
-// pref·F_0 = ½√π p.k q.k/(√(ζη)·|PQ|) = p.kf·q.kf/|PQ| and
-// 1/(2t) = (1/(2ζ) + 1/(2η))/|PQ|² with r2 = |PQ|², which saves a square
-// root and a division on every far primitive quartet.
-func genBoys(w *bytes.Buffer, L int, far bool) {
+// genBoys emits f0 … fL = p.k·q.k·√ozn·F_m(t) (ozn = 1/(ζ+η), t and
+// r2 = |PQ|² defined before). The prefactor is formed on the Taylor
+// branch only: on the asymptotic branch (t ≥ eriBoysTMax, the charge
+// distributions far apart) p.k·q.k·√ozn·F_0 = ½√π p.k q.k/(√(ζη)·|PQ|) =
+// p.kf·q.kf/|PQ| and 1/(2t) = (1/(2ζ) + 1/(2η))/|PQ|², which saves a
+// square root and two divisions on every far primitive quartet.
+func genBoys(w *bytes.Buffer, L int) {
 	fs := make([]string, L+1)
 	for m := range fs {
 		fs[m] = fmt.Sprintf("f%d", m)
 	}
 	fmt.Fprintf(w, "var %s float64\n", strings.Join(fs, ", "))
 	fmt.Fprintf(w, "if t < eriBoysTMax {\n")
-	if far {
-		fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
-	}
+	fmt.Fprintf(w, "pref := p.k * q.k * math.Sqrt(ozn)\n")
 	fmt.Fprintf(w, "k := int(t*eriBoysInvStep + 0.5)\n")
 	fmt.Fprintf(w, "d := t - float64(k)*eriBoysStep\n")
 	// Estrin's scheme: shorter dependency chains than Horner's rule.
@@ -481,19 +439,10 @@ func genBoys(w *bytes.Buffer, L int, far bool) {
 		}
 	}
 	fmt.Fprintf(w, "} else {\n")
-	switch {
-	case far:
-		fmt.Fprintf(w, "ir := 1 / math.Sqrt(r2)\n")
-		fmt.Fprintf(w, "f0 = p.kf * q.kf * ir\n")
-	default:
-		fmt.Fprintf(w, "f0 = pref * 0.5 * math.Sqrt(math.Pi/t)\n")
-	}
+	fmt.Fprintf(w, "ir := 1 / math.Sqrt(r2)\n")
+	fmt.Fprintf(w, "f0 = p.kf * q.kf * ir\n")
 	if L > 0 {
-		if far {
-			fmt.Fprintf(w, "h := (p.oo2z + q.oo2z) * (ir * ir)\n")
-		} else {
-			fmt.Fprintf(w, "h := 0.5 / t\n")
-		}
+		fmt.Fprintf(w, "h := (p.oo2z + q.oo2z) * (ir * ir)\n")
 		for m := 0; m < L; m++ {
 			fmt.Fprintf(w, "f%d = %s\n", m+1, mulInt(2*m+1, fmt.Sprintf("h*f%d", m)))
 		}
