@@ -57,11 +57,11 @@ const (
 // that screening errors do not accumulate.
 const fullRebuildEvery = 8
 
-// waveBytes bounds the memory of the per-chunk Coulomb and exchange buffers
-// held at once by a Fock build (the ring of buildFrom); an eighth of the
+// ringBytes bounds the memory of the per-chunk Coulomb and exchange buffers
+// held at once by a Fock build (its ring of chunk buffers, buildFrom); an eighth of the
 // memory budget when that is less (at least two buffer sets per thread are
 // kept in any case).
-const waveBytes = 64 << 20
+const ringBytes = 64 << 20
 
 // jkBuilder forms Coulomb and exchange matrices from densities, keeping the
 // electron-repulsion integrals in memory when they fit, else recomputing
@@ -97,7 +97,7 @@ type jkBuilder struct {
 
 	pool []jkBuffers // per-chunk accumulation buffers, reused between builds
 
-	waveBytes int64 // bound on the memory of the per-chunk buffers
+	ringBytes int64 // bound on the memory of the per-chunk buffers
 
 	ns      int       // shells
 	schwarz []float64 // ns×ns Schwarz bounds Q
@@ -156,9 +156,9 @@ func newJKBuilderConfig(ctx context.Context, b *integral.Basis, cfg jkConfig) (*
 	}
 	eri := integral.NewERI(b)
 	ns := eri.NumShells()
-	jk := &jkBuilder{b: b, eri: eri, n: b.NBF, threads: threads, ns: ns, waveBytes: waveBytes}
-	if memoryBytes > 0 && memoryBytes/8 < waveBytes {
-		jk.waveBytes = memoryBytes / 8
+	jk := &jkBuilder{b: b, eri: eri, n: b.NBF, threads: threads, ns: ns, ringBytes: ringBytes}
+	if memoryBytes > 0 && memoryBytes/8 < ringBytes {
+		jk.ringBytes = memoryBytes / 8
 	}
 	q := eri.SchwarzMatrix()
 	jk.schwarz = q
@@ -575,8 +575,8 @@ func (jk *jkBuilder) buildFrom(ctx context.Context, dens [][]float64, wantK bool
 	// One buffer set per chunk in flight; chunks are reduced in index order.
 	nc := len(jk.chunks) - 1
 	// Chunks in flight at once: as many buffer sets as fit in
-	// waveBytes (at least 2·threads).
-	nbuf := max(2*jk.threads, int(jk.waveBytes/int64(8*(np+n*n*nk)+8)))
+	// ringBytes (at least 2·threads).
+	nbuf := max(2*jk.threads, int(jk.ringBytes/int64(8*(np+n*n*nk)+8)))
 	if nbuf > nc {
 		nbuf = nc
 	}
