@@ -58,9 +58,9 @@ const (
 const fullRebuildEvery = 8
 
 // ringBytes bounds the memory of the per-chunk Coulomb and exchange buffers
-// held at once by a Fock build (its ring of chunk buffers, buildFrom); an eighth of the
-// memory budget when that is less (at least two buffer sets per thread are
-// kept in any case).
+// held at once by a Fock build (its ring of chunk buffers, buildFrom); an
+// eighth of the memory budget when that is less (at least two buffer sets
+// per thread are kept in any case).
 const ringBytes = 64 << 20
 
 // jkBuilder forms Coulomb and exchange matrices from densities, keeping the
